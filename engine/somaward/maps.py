@@ -1,0 +1,66 @@
+"""Whole-tree map and path profile: attenuation to and from the recording site along the tree.
+
+The map evaluates every section at its ends and at points no farther apart than the chosen
+spacing, for one frequency, in one pass over the tree (O(N)). The path profile gives the voltage
+along the path from the recording site to the synapse, for current injected at the synapse and
+at the soma, each normalised to its input site: for a point p between the soma and the synapse,
+V_p/V_site = e^{U(site) − U(p)} (current at the site) and V_p/V_soma = e^{D(p)} (current at the
+soma), in the notation of :mod:`sites`.
+"""
+
+import math
+
+import numpy as np
+
+from .sites import point_terms
+
+__all__ = ["map_points", "tree_map_logs", "path_points"]
+
+
+def _pieces(length_um, spacing_um):
+    return np.maximum(1, np.ceil(length_um / spacing_um - 1e-9)).astype(np.int64)
+
+
+def map_points(tree, spacing_um):
+    """Points (section, y) of the map: every section end and interior points at ≤ spacing.
+
+    The first section of every branch also gets its proximal end, so each branch's curve
+    starts at its branch point.
+    """
+    n = _pieces(tree.length_um, spacing_um)
+    first = np.zeros(tree.n_sections, dtype=bool)
+    for f, _ in tree.branch_sections:
+        first[f] = True
+    counts = n + first
+    sec = np.repeat(np.arange(tree.n_sections), counts)
+    start_j = np.repeat(np.where(first, 0, 1), counts)
+    offsets = np.arange(len(sec)) - np.repeat(np.cumsum(counts) - counts, counts)
+    j = start_j + offsets
+    y = tree.length_um[sec] * j / n[sec]
+    order = np.lexsort((y, tree.start_um[sec], tree.branch_of[sec]))
+    return sec[order], y[order]
+
+
+def tree_map_logs(sol, sec, y_um):
+    """ln-attenuations at the map points for the first Laplace variable of ``sol``."""
+    t = point_terms(sol, sec, y_um)
+    return t["up"][:, 0], t["down"][:, 0]
+
+
+def path_points(tree, sec, y_um, spacing_um):
+    """Points from the recording site to (sec, y) along the path, ≤ spacing apart."""
+    chain = []
+    s = int(sec)
+    while s >= 0:
+        chain.append(s)
+        s = int(tree.parent[s])
+    chain.reverse()
+    out_sec, out_y = [chain[0]], [0.0]
+    for s in chain:
+        end = float(y_um) if s == int(sec) else float(tree.length_um[s])
+        if end <= 0.0:
+            continue
+        n = max(1, math.ceil(end / spacing_um - 1e-9))
+        out_sec.extend([s] * n)
+        out_y.extend(end * j / n for j in range(1, n + 1))
+    return np.array(out_sec, dtype=np.int64), np.array(out_y)

@@ -1,0 +1,224 @@
+"""``solve(scenario) -> report``: the one entry point used by the page, the CLI and the tests.
+
+The report is a JSON-serialisable dict whose keys carry their units (see DEVELOPERS.md).
+Fractions follow the conventions of Rall 1977: A = V_out/V_in ≤ 1 for current injected at the
+input site; ``_fold`` = 1/A; ``_log`` = ln(V_in/V_out) in nepers, computed without forming A.
+"""
+
+import math
+
+import numpy as np
+
+from . import __version__
+from .frequency import centroid_delays_ms, laplace_of_hz, site_response
+from .maps import map_points, path_points, tree_map_logs
+from .sanity import geometry_warnings, membrane_warnings
+from .scenario import locate_synapse, validate
+from .sites import point_terms
+from .tree import build_tree, solve_tree
+
+__all__ = ["solve"]
+
+_LOG_UNDERFLOW = -708.0          # exp() below this is subnormal or 0
+
+
+def _num(x):
+    """A finite float, or None."""
+    x = float(x)
+    return x if math.isfinite(x) else None
+
+
+def _ratio_block(name, log_ratio, warnings, what):
+    """A, fold, log and percent for one direction from ln A (real, ≤ 0)."""
+    lr = float(log_ratio)
+    if lr == -math.inf:
+        return {name: 0.0, f"{name}_fold": None, f"{name}_log": None, f"{name}_percent": 0.0}
+    if lr < _LOG_UNDERFLOW:
+        warnings.append(f"{what}: the ratio e^{lr:.1f} underflows double precision and is reported as 0; "
+                        "its log attenuation is exact.")
+        return {name: 0.0, f"{name}_fold": None, f"{name}_log": -lr, f"{name}_percent": 0.0}
+    a = math.exp(lr)
+    return {name: a, f"{name}_fold": _num(math.exp(-lr)), f"{name}_log": -lr, f"{name}_percent": 100.0 * a}
+
+
+def _magnitudes(log_values):
+    re = np.real(log_values)
+    with np.errstate(under="ignore"):
+        mag = np.where(re < _LOG_UNDERFLOW, 0.0, np.exp(np.maximum(re, _LOG_UNDERFLOW)))
+    return [float(v) for v in mag]
+
+
+def _listed(values):
+    return [_num(v) for v in values]
+
+
+def _direction(log_a, freq_hz, centroid_ms):
+    """Magnitude, log attenuation, unwrapped phase and phase delay of one direction."""
+    omega = 2.0 * math.pi * np.asarray(freq_hz) * 1e-3          # rad/ms
+    phase = np.imag(log_a)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        delay = np.where(omega > 0, -phase / np.where(omega > 0, omega, 1.0), centroid_ms)
+    return {"magnitude": _magnitudes(log_a), "log_attenuation": _listed(-np.real(log_a)),
+            "phase_deg": _listed(np.degrees(phase)), "phase_delay_ms": _listed(delay)}
+
+
+def _impedance(ln_z):
+    return {"magnitude": _magnitudes(ln_z), "phase_deg": _listed(np.degrees(np.imag(ln_z)))}
+
+
+def _branch_tables(tree, branches):
+    lam, elec, secs, term_x = {}, {}, {}, {}
+    for b in range(len(tree.branch_ids)):
+        idx = _branch_section_indices(tree, b)
+        bid = tree.branch_ids[b]
+        rows = [{"length_um": float(tree.length_um[i]), "diameter_um": float(tree.diameter_um[i]),
+                 "lambda_um": float(tree.lambda_um[i]),
+                 "electrotonic_length": float(tree.electrotonic_length[i])} for i in idx]
+        secs[bid] = rows
+        lam[bid] = rows[0]["lambda_um"] if len(rows) == 1 else [r["lambda_um"] for r in rows]
+        elec[bid] = math.fsum(r["electrotonic_length"] for r in rows)
+        if tree.terminal_branch[b]:
+            i = idx[-1]
+            term_x[bid] = float(tree.x_start[i] + tree.electrotonic_length[i])
+    return lam, elec, secs, term_x
+
+
+def _branch_section_indices(tree, b):
+    """Section indices of branch b from proximal to distal (they need not be contiguous)."""
+    first, last = tree.branch_sections[b]
+    chain = [last]
+    while chain[-1] != first:
+        chain.append(int(tree.parent[chain[-1]]))
+    return chain[::-1]
+
+
+def _site_section(tree, branch_index, distance_um):
+    """(section, y) of a point given by branch and distance from the branch's proximal end."""
+    idx = _branch_section_indices(tree, branch_index)
+    for i in idx:
+        if distance_um <= tree.start_um[i] + tree.length_um[i] or i == idx[-1]:
+            return i, float(min(max(distance_um - tree.start_um[i], 0.0), tree.length_um[i]))
+    raise AssertionError("unreachable")
+
+
+def _soma_block(tree, scenario):
+    soma = scenario["soma"]
+    if soma is None:
+        return None
+    area = math.pi * soma["diameter"] ** 2
+    return {"diameter_um": float(soma["diameter"]), "area_um2": area, "Rm_ohm_cm2": float(soma["Rm"]),
+            "resistance_Mohm": 1.0 / tree.soma_g_uS, "capacitance_pF": tree.soma_c_nF * 1e3,
+            "tau_ms": tree.soma_c_nF / tree.soma_g_uS}
+
+
+def _steady_state(tree, sec, y, warnings):
+    sol = solve_tree(tree, np.array([0.0]))
+    t = point_terms(sol, [sec], [y])
+    up, down, y_node = float(t["up"][0, 0]), float(t["down"][0, 0]), float(t["y_node"][0, 0])
+    ss = {}
+    ss.update(_ratio_block("site_to_soma", up, warnings, "steady-state site→soma attenuation"))
+    ss.update(_ratio_block("soma_to_site", down, warnings, "steady-state soma→site attenuation"))
+    g_dend = float(sol.yload[-1, 0])
+    values = {
+        "soma_input_resistance_Mohm": 1.0 / float(sol.y_root[0]),
+        "site_input_resistance_Mohm": 1.0 / y_node,
+        "transfer_resistance_Mohm": _num(math.exp(up) / y_node) if up > _LOG_UNDERFLOW else 0.0,
+        "rho": g_dend / tree.soma_g_uS if tree.has_soma else None,
+        "rho_inf": (float(tree.g_inf_uS[tree.parent < 0].sum()) / tree.soma_g_uS) if tree.has_soma else None,
+    }
+    return sol, ss, values
+
+
+def _frequency(tree, sec, y, freqs, centroid, warnings):
+    r = site_response(tree, sec, y, laplace_of_hz(freqs))
+    out = {"frequencies_hz": [float(f) for f in freqs],
+           "site_to_soma": _direction(r["up"], freqs, centroid[0]),
+           "soma_to_site": _direction(r["down"], freqs, centroid[1]),
+           "transfer_impedance_Mohm": _impedance(r["up"] + r["ln_z_site"]),
+           "site_input_impedance_Mohm": _impedance(r["ln_z_site"]),
+           "soma_input_impedance_Mohm": _impedance(r["ln_z_root"])}
+    for key in ("site_to_soma", "soma_to_site"):
+        zero = [f for f, m in zip(freqs, out[key]["magnitude"]) if m == 0.0]
+        if zero:
+            warnings.append(f"frequency response {key.replace('_', ' ')}: |A| underflows double precision at "
+                            f"{len(zero)} frequencies from {min(zero):g} Hz and is reported as 0 there; "
+                            "log attenuation and phase stay exact.")
+    return out
+
+
+def _tree_map(tree, scenario):
+    sec, y = map_points(tree, scenario["map_spacing_um"])
+    f = scenario["map_frequency_hz"]
+    sol = solve_tree(tree, np.array([0.0]) if f == 0 else laplace_of_hz([f]))
+    up, down = tree_map_logs(sol, sec, y)
+    x = tree.x_start[sec] + y / tree.lambda_um[sec]
+    return {"frequency_hz": float(f),
+            "branch": [tree.branch_ids[b] for b in tree.branch_of[sec]],
+            "distance_um": [float(v) for v in tree.start_um[sec] + y],
+            "path_distance_um": [float(v) for v in tree.path_start_um[sec] + y],
+            "electrotonic_distance": [float(v) for v in x],
+            "site_to_soma": _magnitudes(up), "soma_to_site": _magnitudes(down),
+            "site_to_soma_log": _listed(-np.real(up)), "soma_to_site_log": _listed(-np.real(down))}
+
+
+def _path_profile(tree, sol_dc, sec, y, spacing):
+    psec, py = path_points(tree, sec, y, spacing)
+    t = point_terms(sol_dc, psec, py)
+    u_site = point_terms(sol_dc, [sec], [y])["up"][0, 0]
+    return {"path_distance_um": [float(v) for v in tree.path_start_um[psec] + py],
+            "electrotonic_distance": [float(v) for v in tree.x_start[psec] + py / tree.lambda_um[psec]],
+            "branch": [tree.branch_ids[b] for b in tree.branch_of[psec]],
+            "input_at_site": _magnitudes(u_site - t["up"][:, 0]),
+            "input_at_soma": _magnitudes(t["down"][:, 0])}
+
+
+def solve(scenario):
+    """Solve a scenario: steady state, frequency response, maps and profile at the synapse.
+
+    Parameters
+    ----------
+    scenario : dict
+        See ``scenario.schema.json`` (units: µm, ms, pA, nS, pF, Hz; Rm Ω·cm², Ri Ω·cm,
+        Cm µF/cm²).
+
+    Returns
+    -------
+    dict
+        The report (JSON-serialisable; no NaN or inf). Keys are listed in DEVELOPERS.md.
+
+    Raises
+    ------
+    ScenarioError
+        One line naming the field and what is allowed.
+    """
+    sc = validate(scenario)
+    warnings = membrane_warnings(sc["membrane"], sc["soma"]) + geometry_warnings(sc["branches"])
+    tree = build_tree(sc["branches"], sc["membrane"], sc["soma"])
+    index = {b["id"]: i for i, b in enumerate(sc["branches"])}
+    b, dist = locate_synapse(sc["synapse"], sc["branches"], index)
+    sec, y = _site_section(tree, b, dist)
+    sol_dc, steady, values = _steady_state(tree, sec, y, warnings)
+    centroid = centroid_delays_ms(tree, sec, y)
+    lam, elec, secs, term_x = _branch_tables(tree, sc["branches"])
+    x_site = float(tree.x_start[sec] + y / tree.lambda_um[sec])
+    report = {
+        "engine_version": __version__,
+        "recording_site": "soma" if tree.has_soma else "root",
+        "tau_m_ms": float(tree.tau_ms),
+        "lambda_um": lam, "electrotonic_length": elec, "sections": secs,
+        "terminal_electrotonic_distance": term_x,
+        **values,
+        "electrotonic_distance": x_site,
+        "site": {"branch": tree.branch_ids[b], "distance_um": float(dist),
+                 "path_distance_um": float(tree.path_start_um[sec] + y), "electrotonic_distance": x_site},
+        "soma": _soma_block(tree, sc),
+        "attenuation": {"steady_state": steady},
+        "frequency_response": _frequency(tree, sec, y, sc["frequencies_hz"], centroid, warnings),
+        "centroid_delay_ms": _num(centroid[0]),
+        "centroid_delay_soma_to_site_ms": _num(centroid[1]),
+        "path_profile": _path_profile(tree, sol_dc, sec, y, sc["map_spacing_um"]),
+        "tree_map": _tree_map(tree, sc),
+    }
+    report["warnings"] = warnings
+    report["scenario"] = sc
+    return report

@@ -1,0 +1,184 @@
+"""The scenario: structural check against the published schema, then the rules a schema cannot
+state (ids, parents, cycles, where the synapse may sit), and the defaults filled in.
+
+``validate(scenario)`` returns a new dict that validates again unchanged; every error is a
+:class:`~somaward.errors.ScenarioError` with one line naming the JSON path.
+"""
+
+import math
+
+from .errors import ScenarioError
+from .schema_check import check, describe, did_you_mean, load_schema
+
+__all__ = ["validate", "default_frequencies_hz", "load_schema", "MAX_MAP_POINTS", "locate_synapse"]
+
+MAX_MAP_POINTS = 2_000_000
+_REL_TOL = 1e-12
+
+
+def default_frequencies_hz():
+    """0 Hz and 10 log-spaced values per decade from 0.1 Hz to 10 kHz, to 3 significant digits."""
+    values = [0.0]
+    for j in range(-10, 41):
+        f = 10.0 ** (j / 10.0)
+        values.append(float(f"{f:.3g}"))
+    return values
+
+
+def validate(scenario):
+    """Check a scenario and return it with every default filled in.
+
+    Raises
+    ------
+    ScenarioError
+        For the first rule broken, naming its JSON path.
+    """
+    out = check(scenario)
+    branches = out["branches"]
+    index = _check_ids(branches)
+    children = _check_parents(branches, index)
+    _fill_ends(branches, children)
+    if out.get("soma") is not None:
+        out["soma"].setdefault("Rm", out["membrane"]["Rm"])
+    if "frequencies_hz" not in out:
+        out["frequencies_hz"] = default_frequencies_hz()
+    _check_synapse(out["synapse"], branches, index, children)
+    _check_map_points(branches, out["map_spacing_um"])
+    return _ordered(out, scenario)
+
+
+def _ordered(out, given):
+    """Keys in a stable order: the schema's, so that exports and permalinks are reproducible."""
+    order = ["title", "notes", "membrane", "soma", "branches", "synapse",
+             "frequencies_hz", "map_spacing_um", "map_frequency_hz"]
+    return {k: out[k] for k in order if k in out}
+
+
+def branch_length_um(branch):
+    if "sections" in branch:
+        return math.fsum(s["length"] for s in branch["sections"])
+    return branch["length"]
+
+
+def _check_ids(branches):
+    index = {}
+    for i, b in enumerate(branches):
+        if b["id"] in index:
+            raise ScenarioError(f"branches[{i}].id", f"duplicate id {b['id']!r} (also branches[{index[b['id']]}])")
+        index[b["id"]] = i
+    return index
+
+
+def _check_parents(branches, index):
+    children = [[] for _ in branches]
+    for i, b in enumerate(branches):
+        p = b["parent"]
+        if p is None:
+            continue
+        if p not in index:
+            raise ScenarioError(f"branches[{i}].parent", f"no branch has id {p!r}" + did_you_mean(p, index)
+                                + " (use null for a branch leaving the soma)")
+        if p == b["id"]:
+            raise ScenarioError(f"branches[{i}].parent", f"a branch cannot be its own parent ({p!r})")
+        children[index[p]].append(i)
+    _check_cycles(branches, index)
+    return children
+
+
+def _check_cycles(branches, index):
+    state = [0] * len(branches)          # 0 unseen, 1 on the current chain, 2 reaches a root
+    for start in range(len(branches)):
+        chain, i = [], start
+        while i is not None and state[i] == 0:
+            state[i] = 1
+            chain.append(i)
+            p = branches[i]["parent"]
+            i = None if p is None else index[p]
+        if i is not None and state[i] == 1:
+            loop = chain[chain.index(i):] + [i]
+            names = " → ".join(branches[j]["id"] for j in loop)
+            raise ScenarioError(f"branches[{i}].parent", f"the parent chain loops back on itself ({names}); "
+                                "every branch must lead to the soma")
+        for j in chain:
+            state[j] = 2
+
+
+def _fill_ends(branches, children):
+    for i, b in enumerate(branches):
+        if children[i]:
+            if "end" in b:
+                kids = ", ".join(repr(branches[c]["id"]) for c in children[i][:3])
+                raise ScenarioError(f"branches[{i}].end", f"only terminal branches take an end condition; "
+                                    f"{b['id']!r} has child branches ({kids})")
+        else:
+            b.setdefault("end", "sealed")
+
+
+def _check_synapse(syn, branches, index, children):
+    if "branch" in syn:
+        if syn["branch"] not in index:
+            raise ScenarioError("synapse.branch", f"no branch has id {syn['branch']!r}" + did_you_mean(syn["branch"], index))
+        i, dist, field = index[syn["branch"]], syn["distance"], "synapse.distance"
+        length = branch_length_um(branches[i])
+        if dist > length * (1 + _REL_TOL):
+            raise ScenarioError(field, f"must be ≤ {length:g} µm (the length of branch {syn['branch']!r}), got {describe(dist)}")
+    else:
+        if syn["path"] not in index:
+            raise ScenarioError("synapse.path", f"no branch has id {syn['path']!r}" + did_you_mean(syn["path"], index))
+        i = index[syn["path"]]
+        if children[i]:
+            raise ScenarioError("synapse.path", f"must name a terminal branch; {syn['path']!r} has child branches")
+        i, dist, field = _on_path(syn, branches, index)
+        length = branch_length_um(branches[i])
+    at_end = not children[i] and dist >= length * (1 - _REL_TOL)
+    if at_end and branches[i].get("end") == "killed":
+        raise ScenarioError(field, f"the synapse would sit on the killed end of {branches[i]['id']!r}, where V is "
+                            "held at 0; place it inside the branch")
+    cur = syn.get("current", {})
+    if cur.get("shape") == "dual_exponential" and not cur["tau_decay"] > cur["tau_rise"]:
+        raise ScenarioError("synapse.current.tau_decay", f"must be > tau_rise ({cur['tau_rise']:g} ms), "
+                            f"got {describe(cur['tau_decay'])}")
+
+
+def _path_to(branches, index, terminal):
+    chain, i = [], index[terminal]
+    while i is not None:
+        chain.append(i)
+        p = branches[i]["parent"]
+        i = None if p is None else index[p]
+    return chain[::-1]
+
+
+def _on_path(syn, branches, index):
+    chain = _path_to(branches, index, syn["path"])
+    total = math.fsum(branch_length_um(branches[i]) for i in chain)
+    if syn["path_distance"] > total * (1 + _REL_TOL):
+        raise ScenarioError("synapse.path_distance", f"must be ≤ {total:g} µm (the path length from the soma "
+                            f"to the end of {syn['path']!r}), got {describe(syn['path_distance'])}")
+    i, dist = locate_synapse(syn, branches, index)
+    return i, dist, "synapse.path_distance"
+
+
+def locate_synapse(syn, branches, index):
+    """(branch index, distance from its proximal end in µm) of a validated synapse."""
+    if "branch" in syn:
+        i = index[syn["branch"]]
+        return i, min(float(syn["distance"]), branch_length_um(branches[i]))
+    chain = _path_to(branches, index, syn["path"])
+    start = 0.0
+    for i in chain:
+        length = branch_length_um(branches[i])
+        if syn["path_distance"] <= start + length or i == chain[-1]:
+            return i, min(max(syn["path_distance"] - start, 0.0), length)
+        start += length
+    raise AssertionError("unreachable")
+
+
+def _check_map_points(branches, spacing_um):
+    points = 0.0
+    for b in branches:
+        for s in b.get("sections", [b]):
+            points += math.ceil(s["length"] / spacing_um) + 1
+            if points > MAX_MAP_POINTS:
+                raise ScenarioError("map_spacing_um", f"too fine for this tree: more than {MAX_MAP_POINTS:,} map "
+                                    f"points; use a larger spacing, got {describe(spacing_um)} µm")

@@ -1,0 +1,242 @@
+"""A small pure-Python reader of the JSON Schema subset that the scenario contract uses.
+
+The published schema (``scenario.schema.json``) is the one place the structural rules live; this
+module walks it to check a scenario, word the first broken rule as one line naming its JSON
+path, and fill in the ``default`` values. It runs anywhere the engine runs (also in the page,
+where no compiled validator is available). Supported keywords: type, properties, required,
+additionalProperties: false, items, minItems, maxItems, minLength, maxLength, enum, const,
+minimum, maximum, exclusiveMinimum, oneOf, $ref (local), default, and the annotations x-unit
+and x-message. ``tests/test_schema.py`` checks that it agrees with the ``jsonschema`` package.
+"""
+
+import copy
+import difflib
+import json
+import math
+from importlib import resources
+
+from .errors import ScenarioError
+
+__all__ = ["load_schema", "check", "did_you_mean", "describe"]
+
+_TYPE_WORDS = {"object": "an object", "array": "a list", "string": "a string", "number": "a number",
+               "null": "null", "boolean": "true or false"}
+
+
+def load_schema():
+    """The scenario JSON Schema shipped inside the package, as a dict."""
+    return json.loads(resources.files("somaward").joinpath("scenario.schema.json").read_text("utf-8"))
+
+
+def describe(value, limit=40):
+    """A short quotation of a user's value for an error message ('text', 12.5, null, …)."""
+    if isinstance(value, str):
+        text = repr(value)
+    else:
+        text = json.dumps(value, ensure_ascii=False) if _jsonable(value) else repr(value)
+    return text if len(text) <= limit else text[: limit - 1] + "…"
+
+
+def _jsonable(value):
+    try:
+        json.dumps(value, allow_nan=False)
+        return True
+    except (TypeError, ValueError):
+        return False
+
+
+def did_you_mean(word, choices):
+    """`` did you mean 'x'?`` for the closest of ``choices``, or an empty string."""
+    close = difflib.get_close_matches(str(word), [str(c) for c in choices], n=1, cutoff=0.6)
+    return f"; did you mean {describe(close[0])}?" if close else ""
+
+
+def _is_type(value, name):
+    if name == "number":
+        return isinstance(value, (int, float)) and not isinstance(value, bool)
+    if name == "object":
+        return isinstance(value, dict)
+    if name == "array":
+        return isinstance(value, list)
+    if name == "string":
+        return isinstance(value, str)
+    if name == "null":
+        return value is None
+    if name == "boolean":
+        return isinstance(value, bool)
+    raise KeyError(name)
+
+
+def _join(path, key):
+    if isinstance(key, int):
+        return f"{path}[{key}]"
+    return f"{path}.{key}" if path else key
+
+
+class _Checker:
+    def __init__(self, schema):
+        self.root = schema
+
+    def resolve(self, node):
+        while "$ref" in node:
+            ref = node["$ref"]
+            if not ref.startswith("#/"):
+                raise KeyError(ref)
+            target = self.root
+            for part in ref[2:].split("/"):
+                target = target[part]
+            node = {**target, **{k: v for k, v in node.items() if k != "$ref"}}
+        return node
+
+    def check(self, value, node, path):
+        """Return ``value`` with defaults filled in, or raise ScenarioError."""
+        node = self.resolve(node)
+        if "oneOf" in node:
+            return self.one_of(value, node, path)
+        unit = node.get("x-unit")
+        self.check_type(value, node, path, unit)
+        if "const" in node and value != node["const"]:
+            raise ScenarioError(path, f"must be {describe(node['const'])}, got {describe(value)}")
+        if "enum" in node and value not in node["enum"]:
+            allowed = ", ".join(describe(e) for e in node["enum"])
+            raise ScenarioError(path, f"must be one of {allowed}, got {describe(value)}"
+                                + did_you_mean(value, node["enum"]))
+        if _is_type(value, "number"):
+            self.check_number(value, node, path, unit)
+        elif isinstance(value, str):
+            self.check_string(value, node, path)
+        elif isinstance(value, list):
+            return self.check_array(value, node, path)
+        elif isinstance(value, dict):
+            return self.check_object(value, node, path)
+        return value
+
+    def check_type(self, value, node, path, unit):
+        types = node.get("type")
+        if types is None:
+            return
+        types = [types] if isinstance(types, str) else types
+        if not any(_is_type(value, t) for t in types):
+            words = " or ".join(_TYPE_WORDS[t] for t in types)
+            unit_words = f" ({unit})" if unit else ""
+            raise ScenarioError(path, f"must be {words}{unit_words}, got {describe(value)}")
+
+    def check_number(self, value, node, path, unit):
+        u = f" {unit}" if unit else ""
+        if not math.isfinite(value):
+            raise ScenarioError(path, f"must be a finite number{f' ({unit})' if unit else ''}, got {value}")
+        if "exclusiveMinimum" in node and not value > node["exclusiveMinimum"]:
+            raise ScenarioError(path, f"must be > {node['exclusiveMinimum']}{u}, got {describe(value)}")
+        if "minimum" in node and not value >= node["minimum"]:
+            raise ScenarioError(path, f"must be ≥ {node['minimum']}{u}, got {describe(value)}")
+        if "maximum" in node and not value <= node["maximum"]:
+            raise ScenarioError(path, f"must be ≤ {node['maximum']}{u}, got {describe(value)}")
+
+    def check_string(self, value, node, path):
+        if len(value) < node.get("minLength", 0):
+            raise ScenarioError(path, "must not be empty" if node["minLength"] == 1
+                                else f"must have at least {node['minLength']} characters")
+        if "maxLength" in node and len(value) > node["maxLength"]:
+            raise ScenarioError(path, f"must have at most {node['maxLength']} characters, got {len(value)}")
+
+    def check_array(self, value, node, path):
+        if len(value) < node.get("minItems", 0):
+            raise ScenarioError(path, f"must have at least {node['minItems']} item(s), got {len(value)}")
+        if "maxItems" in node and len(value) > node["maxItems"]:
+            raise ScenarioError(path, f"must have at most {node['maxItems']} items, got {len(value)}")
+        items = node.get("items")
+        if items is None:
+            return list(value)
+        return [self.check(v, items, _join(path, i)) for i, v in enumerate(value)]
+
+    def check_object(self, value, node, path):
+        props = node.get("properties", {})
+        for key in value:
+            if not isinstance(key, str):
+                raise ScenarioError(path, f"keys must be strings, got {describe(key)}")
+            if node.get("additionalProperties", True) is False and key not in props:
+                raise ScenarioError(_join(path, key), "unknown key" + did_you_mean(key, props)
+                                    + f" (allowed here: {', '.join(props)})")
+        for key in node.get("required", []):
+            if key not in value:
+                hint = self.resolve(props.get(key, {})).get("description", "")
+                raise ScenarioError(path or "scenario", f"missing required key {key!r}"
+                                    + (f" ({hint[0].lower()}{hint[1:].rstrip('.')})" if hint else ""))
+        out = {}
+        for key, sub in props.items():
+            if key in value:
+                out[key] = self.check(value[key], sub, _join(path, key))
+            elif "default" in self.resolve(sub):
+                out[key] = copy.deepcopy(self.resolve(sub)["default"])
+        return out
+
+    def one_of(self, value, node, path):
+        outcomes = []                       # (filled value, None) or (None, error) per alternative
+        for alt in node["oneOf"]:
+            try:
+                outcomes.append((self.check(value, alt, path), None))
+            except ScenarioError as err:
+                outcomes.append((None, err))
+        passed = [filled for filled, err in outcomes if err is None]
+        if len(passed) == 1:
+            return passed[0]
+        message = node.get("x-message", "does not match any allowed form")
+        if len(passed) > 1:
+            raise ScenarioError(path or "scenario", f"{message}, not both")
+        best = self.closest(value, node["oneOf"], path)
+        if best is not None:
+            raise outcomes[best][1]
+        if isinstance(value, dict):
+            raise ScenarioError(path or "scenario", message)
+        raise ScenarioError(path or "scenario", f"{message}; got {describe(value)}")
+
+    def closest(self, value, alts, path):
+        """The alternative a failing value most plausibly meant, or None when it is unclear.
+
+        An alternative is meant when it alone has the value's type, or when the value carries
+        its discriminating constant (e.g. ``shape``), or when only it has its own required keys
+        present. A value that mixes two forms is unclear.
+        """
+        alts = [self.resolve(a) for a in alts]
+        typed = [i for i, a in enumerate(alts) if "type" not in a or _is_type(value, a["type"])]
+        if len(typed) == 1:
+            return typed[0]
+        if not typed and len({a.get("type") for a in alts}) == 1:
+            return 0                        # one shared type, and the value is not of it
+        if not typed or not isinstance(value, dict):
+            return None
+        self.check_discriminator(value, [alts[i] for i in typed], path)
+        for i in typed:
+            props = alts[i].get("properties", {})
+            if any("const" in p and value.get(k) == p["const"] for k, p in props.items()):
+                return i
+        common = set.intersection(*(set(alts[i].get("required", [])) for i in typed))
+        scores = [sum(1 for k in alts[i].get("required", []) if k in value and k not in common) for i in typed]
+        if sum(1 for s in scores if s > 0) != 1:
+            return None
+        return typed[next(j for j, s in enumerate(scores) if s > 0)]
+
+    def check_discriminator(self, value, alts, path):
+        """A key that every alternative fixes with a const must hold one of those constants."""
+        keys = set.intersection(*({k for k, p in a.get("properties", {}).items() if "const" in p} for a in alts))
+        for key in sorted(keys):
+            allowed = [a["properties"][key]["const"] for a in alts]
+            if key in value and value[key] not in allowed:
+                words = ", ".join(describe(c) for c in allowed)
+                raise ScenarioError(_join(path, key), f"must be one of {words}, got {describe(value[key])}"
+                                    + did_you_mean(value[key], allowed))
+
+
+def check(value, schema=None):
+    """Check ``value`` against the scenario schema; return it with defaults filled in.
+
+    Raises
+    ------
+    ScenarioError
+        One line naming the JSON path and the rule, e.g.
+        ``branches[2].diameter: must be > 0 µm, got -1``.
+    """
+    schema = load_schema() if schema is None else schema
+    if not isinstance(value, dict):
+        raise ScenarioError("scenario", f"must be a JSON object, got {describe(value)}")
+    return _Checker(schema).check(value, schema, "")

@@ -1,0 +1,273 @@
+"""Branched passive trees: the branch table as sections, and the O(N) passes over them.
+
+A tree is stored as *sections* (uniform cylinders), numbered so that every level — the sections
+at the same number of sections from the recording site — is one contiguous block and every
+parent comes before its children. The passes walk the levels with numpy over all sections of a
+level and all frequencies at once; nothing recurses, so a chain of 10⁵ sections is as safe as a
+bushy tree.
+
+For every Laplace variable s (1/ms) and section i the passes give (notation of :mod:`cable`):
+
+* up (leaves → root): the distal load YL_i = Σ children's Yin (or the terminal condition), its
+  reflection Γ_i and the section's input admittance Yin_i — Rall 1959's recursion of input
+  admittances, in the bounded form of :mod:`cable`;
+* down (root → leaves): D_i = ln(V_distal_i / V_root) for current injected at the root (the soma),
+  the running sum of each section's ln V(L)/V(0); and Yup_i, the admittance of everything *except*
+  the subtree of i seen from i's proximal node, carried across the section to give Γ'_i;
+* U_i = ln(V_root / V_distal_i) for current injected at the distal node of i: the running sum of
+  the proximal-direction voltage ratio of each section, whose load is Yup.
+
+Values at a point then follow from the section's own terms (:mod:`sites`). The soma→site ratio
+uses D and the site→soma ratio uses U: two genuinely different injections, so reciprocity
+(Koch 1999 ch. 3) is a check, not an assumption.
+
+Units inside: µm, ms, MΩ, µS, nF; s in 1/ms.
+"""
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from . import cable
+from .membrane import input_resistance_infinite_Mohm, membrane_time_constant_ms, space_constant_um
+
+__all__ = ["Tree", "TreeSolution", "build_tree", "solve_tree", "END_CODES"]
+
+END_CODES = {"internal": 0, "sealed": 1, "killed": 2, "infinite": 3, "load": 4}
+
+
+@dataclass(frozen=True)
+class Tree:
+    """Sections of a tree in level order, with their cable constants.
+
+    Attributes are numpy arrays over sections unless stated; ``parent`` is −1 for sections that
+    leave the recording site (soma or root node).
+    """
+
+    branch_ids: tuple
+    branch_of: np.ndarray          # section -> branch index
+    parent: np.ndarray             # section -> parent section (−1: the recording site)
+    length_um: np.ndarray
+    diameter_um: np.ndarray
+    lambda_um: np.ndarray
+    g_inf_uS: np.ndarray           # 1/R∞ of each section
+    electrotonic_length: np.ndarray
+    start_um: np.ndarray           # distance of the section's proximal end from its branch's start
+    path_start_um: np.ndarray      # path distance of the proximal end from the recording site
+    x_start: np.ndarray            # electrotonic distance of the proximal end
+    end_code: np.ndarray           # END_CODES, terminal sections only
+    end_g_uS: np.ndarray
+    end_c_nF: np.ndarray
+    levels: tuple                  # (start, stop) of each level
+    branch_sections: tuple         # branch index -> (first, last) section index
+    terminal_branch: np.ndarray    # bool per branch
+    branch_parent: np.ndarray      # branch index -> parent branch index (−1 at the site)
+    tau_ms: float
+    soma_g_uS: float               # 0 without a soma
+    soma_c_nF: float
+    has_soma: bool
+
+    @property
+    def n_sections(self):
+        return len(self.parent)
+
+
+def _branch_order(branches):
+    """Branch indices in breadth-first order from the roots, and each branch's parent index."""
+    index = {b["id"]: i for i, b in enumerate(branches)}
+    parent = np.array([-1 if b["parent"] is None else index[b["parent"]] for b in branches])
+    children = [[] for _ in branches]
+    for i, p in enumerate(parent):
+        if p >= 0:
+            children[p].append(i)
+    order = [i for i in range(len(branches)) if parent[i] < 0]
+    head = 0
+    while head < len(order):
+        order.extend(children[order[head]])
+        head += 1
+    return order, parent, children
+
+
+def _sections_of(branch):
+    if "sections" in branch:
+        return [(float(s["length"]), float(s["diameter"])) for s in branch["sections"]]
+    return [(float(branch["length"]), float(branch["diameter"]))]
+
+
+def _end_terms(end):
+    if isinstance(end, dict):
+        return END_CODES["load"], float(end["G"]) * 1e-3, float(end["C"]) * 1e-3
+    return END_CODES[end], 0.0, 0.0
+
+
+def build_tree(branches, membrane, soma=None):
+    """Sections in level order from a validated branch table.
+
+    Parameters
+    ----------
+    branches : list of dict
+        Validated branches (``id``, ``parent``, ``length``/``diameter`` or ``sections``, ``end``).
+    membrane : dict
+        ``Rm`` (Ω·cm²), ``Ri`` (Ω·cm), ``Cm`` (µF/cm²), uniform over the tree.
+    soma : dict or None
+        ``diameter`` (µm) and optional own ``Rm`` (Ω·cm²) of an isopotential spherical soma.
+    """
+    rm, ri, cm = float(membrane["Rm"]), float(membrane["Ri"]), float(membrane["Cm"])
+    order, bparent, children = _branch_order(branches)
+    rows, first_last = [], [None] * len(branches)
+    depth_end = np.zeros(len(branches), dtype=np.int64)   # level just after the branch
+    for b in order:
+        secs = _sections_of(branches[b])
+        p = bparent[b]
+        depth = 0 if p < 0 else depth_end[p]
+        code, g, c = _end_terms(branches[b].get("end", "sealed")) if not children[b] else (0, 0.0, 0.0)
+        start = 0.0
+        first = len(rows)
+        for j, (length, diam) in enumerate(secs):
+            last = j == len(secs) - 1
+            rows.append((depth + j, b, length, diam, start, code if last else 0, g if last else 0.0,
+                         c if last else 0.0, (len(rows) - 1) if j else (-1 if p < 0 else -2)))
+            start += length
+        first_last[b] = (first, len(rows) - 1)
+        depth_end[b] = depth + len(secs)
+    # level order: stable sort by depth keeps each branch's sections in order
+    depth = np.array([r[0] for r in rows], dtype=np.int64)
+    perm = np.argsort(depth, kind="stable")
+    new_of_old = np.empty_like(perm)
+    new_of_old[perm] = np.arange(len(perm))
+    parent_old = np.array([r[8] for r in rows], dtype=np.int64)
+    for b, (first, _) in enumerate(first_last):
+        if parent_old[first] == -2:
+            parent_old[first] = first_last[bparent[b]][1]
+    parent = np.where(parent_old[perm] >= 0, new_of_old[np.maximum(parent_old[perm], 0)], -1)
+    col = lambda k, dt=float: np.array([rows[i][k] for i in perm], dtype=dt)  # noqa: E731
+    length, diam = col(2), col(3)
+    lam = space_constant_um(diam, rm, ri)
+    elec = length / lam
+    path_start, x_start = np.zeros(len(perm)), np.zeros(len(perm))
+    levels = _levels(depth[perm])
+    for lo, hi in levels[1:]:
+        p = parent[lo:hi]
+        path_start[lo:hi] = path_start[p] + length[p]
+        x_start[lo:hi] = x_start[p] + elec[p]
+    soma_g, soma_c = _soma_terms(soma, rm, cm)
+    return Tree(
+        branch_ids=tuple(b["id"] for b in branches),
+        branch_of=col(1, np.int64), parent=parent, length_um=length, diameter_um=diam,
+        lambda_um=lam, g_inf_uS=1.0 / input_resistance_infinite_Mohm(diam, rm, ri),
+        electrotonic_length=elec, start_um=col(4), path_start_um=path_start, x_start=x_start,
+        end_code=col(5, np.int64), end_g_uS=col(6), end_c_nF=col(7), levels=levels,
+        branch_sections=tuple((int(new_of_old[f]), int(new_of_old[la])) for f, la in first_last),
+        terminal_branch=np.array([not ch for ch in children]), branch_parent=bparent,
+        tau_ms=membrane_time_constant_ms(rm, cm), soma_g_uS=soma_g, soma_c_nF=soma_c,
+        has_soma=soma is not None,
+    )
+
+
+def _levels(depth_sorted):
+    cuts = np.flatnonzero(np.diff(depth_sorted)) + 1
+    bounds = np.concatenate(([0], cuts, [len(depth_sorted)]))
+    return tuple((int(a), int(b)) for a, b in zip(bounds[:-1], bounds[1:]))
+
+
+def _soma_terms(soma, rm, cm):
+    """Conductance (µS) and capacitance (nF) of a spherical soma of area πD²."""
+    if soma is None:
+        return 0.0, 0.0
+    area_cm2 = np.pi * (float(soma["diameter"]) * 1e-4) ** 2
+    rm_soma = float(soma.get("Rm", rm))
+    return area_cm2 / rm_soma * 1e6, cm * area_cm2 * 1e3
+
+
+@dataclass(frozen=True)
+class TreeSolution:
+    """Per-section terms of one tree at the Laplace variables ``s`` (shape (F,), 1/ms).
+
+    Arrays are (N, F). ``gam/opg`` are Γ and 1+Γ of each section's distal load; ``gup/opu/omu``
+    are Γ', 1+Γ', 1−Γ' of the load Yup at its proximal end. ``m`` = expm1(−2κ).
+    """
+
+    tree: Tree
+    s: np.ndarray
+    k: np.ndarray
+    y0: np.ndarray
+    m: np.ndarray
+    gam: np.ndarray
+    opg: np.ndarray
+    omg: np.ndarray
+    yin: np.ndarray
+    yload: np.ndarray
+    gup: np.ndarray
+    opu: np.ndarray
+    omu: np.ndarray
+    down_log: np.ndarray      # D at each section's distal node
+    up_log: np.ndarray        # U at each section's distal node
+    y_root: np.ndarray        # (F,) total admittance at the recording site
+    y_soma: np.ndarray        # (F,) the soma's own admittance (0 without a soma)
+
+
+def solve_tree(tree, s):
+    """Run the up and down passes of ``tree`` at Laplace variables ``s`` (1/ms).
+
+    ``s`` real (e.g. ``[0.0]``) gives real arithmetic; complex ``s = iω`` the frequency response.
+    """
+    s = np.atleast_1d(np.asarray(s))
+    k = np.sqrt(1.0 + s * tree.tau_ms)
+    y0 = tree.g_inf_uS[:, None] * k[None, :]
+    kappa = tree.electrotonic_length[:, None] * k[None, :]
+    m = np.expm1(-2.0 * kappa)
+    up = _up_pass(tree, s, y0, m)
+    y_soma = (tree.soma_g_uS + s * tree.soma_c_nF) * np.ones_like(k)
+    y_root = y_soma + up["yload"][-1]
+    down = _down_pass(tree, y0, kappa, m, up, y_root)
+    return TreeSolution(tree=tree, s=s, k=k, y0=y0, m=m, y_root=y_root, y_soma=y_soma, **up, **down)
+
+
+def _terminal_loads(tree, s, y0):
+    """Initial distal loads as (num, den): 0 sealed, killed (1, 0), y0 infinite, G + sC lumped."""
+    n, f = y0.shape
+    num = np.zeros((n + 1, f), dtype=y0.dtype)
+    den = np.ones((n, 1))
+    code = tree.end_code
+    killed, inf, load = code == END_CODES["killed"], code == END_CODES["infinite"], code == END_CODES["load"]
+    num[:n][killed] = 1.0
+    den[killed] = 0.0
+    num[:n][inf] = y0[inf]
+    num[:n][load] = tree.end_g_uS[load][:, None] + tree.end_c_nF[load][:, None] * s[None, :]
+    return num, den
+
+
+def _up_pass(tree, s, y0, m):
+    num, den = _terminal_loads(tree, s, y0)
+    gam, opg, omg, yin = (np.empty_like(y0) for _ in range(4))
+    parent_row = np.where(tree.parent >= 0, tree.parent, tree.n_sections)
+    for lo, hi in reversed(tree.levels):
+        g, p, q = cable.reflection(y0[lo:hi], num[lo:hi], den[lo:hi])
+        gam[lo:hi], opg[lo:hi], omg[lo:hi] = g, p, q
+        yin[lo:hi] = cable.through_admittance(y0[lo:hi], g, q, p, m[lo:hi])
+        np.add.at(num, parent_row[lo:hi], yin[lo:hi])
+    return {"gam": gam, "opg": opg, "omg": omg, "yin": yin, "yload": num}
+
+
+def _down_pass(tree, y0, kappa, m, up, y_root):
+    gam, opg, yin, yload = up["gam"], up["opg"], up["yin"], up["yload"]
+    gup, opu, omu = (np.empty_like(y0) for _ in range(3))
+    down_log, up_log = np.empty_like(y0), np.empty_like(y0)
+    node_y = np.empty_like(y0)        # total admittance at each section's distal node
+    zero = np.zeros(y0.shape[1], dtype=y0.dtype)
+    for lo, hi in tree.levels:
+        p = tree.parent[lo:hi]
+        root = (p < 0)[:, None]
+        pp = np.maximum(p, 0)
+        y_prox = np.where(root, y_root[None, :], node_y[pp]) - yin[lo:hi]
+        g, a, b = cable.reflection(y0[lo:hi], y_prox)
+        gup[lo:hi], opu[lo:hi], omu[lo:hi] = g, a, b
+        with np.errstate(invalid="ignore", divide="ignore"):
+            yup_dist = cable.through_admittance(y0[lo:hi], g, b, a, m[lo:hi])
+            node_y[lo:hi] = yup_dist + yload[lo:hi]
+        base_d = np.where(root, zero[None, :], down_log[pp])
+        base_u = np.where(root, zero[None, :], up_log[pp])
+        zk = np.zeros_like(m[lo:hi])
+        down_log[lo:hi] = base_d + cable.log_voltage_ratio(kappa[lo:hi], gam[lo:hi], opg[lo:hi], zk, m[lo:hi])
+        up_log[lo:hi] = base_u + cable.log_voltage_ratio(kappa[lo:hi], g, a, zk, m[lo:hi])
+    return {"gup": gup, "opu": opu, "omu": omu, "down_log": down_log, "up_log": up_log}
