@@ -221,4 +221,21 @@ def solve(scenario):
     }
     report["warnings"] = warnings
     report["scenario"] = sc
+    report["defaults_applied"] = defaults_applied(scenario, sc)
     return report
+
+
+def defaults_applied(given, validated, path=""):
+    """JSON paths that the validation filled in with a default (absent in ``given``)."""
+    out = []
+    if isinstance(validated, dict) and isinstance(given, dict):
+        for key, value in validated.items():
+            sub = f"{path}.{key}" if path else key
+            if key not in given:
+                out.append(sub)
+            else:
+                out.extend(defaults_applied(given[key], value, sub))
+    elif isinstance(validated, list) and isinstance(given, list):
+        for i, (g, v) in enumerate(zip(given, validated)):
+            out.extend(defaults_applied(g, v, f"{path}[{i}]"))
+    return out

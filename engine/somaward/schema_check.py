@@ -159,7 +159,7 @@ class _Checker:
                                     + f" (allowed here: {', '.join(props)})")
         for key in node.get("required", []):
             if key not in value:
-                hint = self.resolve(props.get(key, {})).get("description", "")
+                hint = self.resolve(props.get(key, {})).get("description", "").split(". ")[0]
                 raise ScenarioError(path or "scenario", f"missing required key {key!r}"
                                     + (f" ({hint[0].lower()}{hint[1:].rstrip('.')})" if hint else ""))
         out = {}
