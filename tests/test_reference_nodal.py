@@ -26,7 +26,6 @@ from mpmath import mp
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 from reference.nodal import NodalTree, membrane_constants, rel_close  # noqa: E402
 
-TWO_PORT = "S10: independent computation (mpmath nodal analysis); two-port from Hodgkin & Rushton 1946, Rall 1959, Rall 1977"
 FREQS_HZ = [0.0] + [10.0 ** (-1 + 5 * k / 19) for k in range(20)]  # 0 Hz + 20 from 0.1 Hz to 10 kHz
 
 
@@ -246,6 +245,29 @@ TREES = {
         "synapse": {"branch": "dend", "distance": 850,
                     "current": {"shape": "alpha", "tau": 0.5, "peak": 50}},
         "map_spacing_um": 100}, 60),  # 60 digits: |A| reaches ~1e-45 at 10 kHz
+    "branch_point_site": ({  # invented: synapse exactly at a branch point, map at 1 kHz
+        "membrane": {"Rm": 25000, "Ri": 120, "Cm": 0.75},
+        "soma": {"diameter": 14, "Rm": 60000},
+        "branches": [
+            {"id": "main", "parent": None,
+             "sections": [{"length": 70, "diameter": 2.2}, {"length": 130, "diameter": 1.6}]},
+            {"id": "left", "parent": "main", "length": 260, "diameter": 1.1, "end": {"G": 0.05, "C": 3.0}},
+            {"id": "right", "parent": "main", "length": 90, "diameter": 0.9, "end": "killed"},
+            {"id": "thick", "parent": None, "length": 60, "diameter": 3.5, "end": "infinite"}],
+        "synapse": {"branch": "main", "distance": 200,
+                    "current": {"shape": "alpha", "tau": 0.5, "peak": 50}},
+        "map_spacing_um": 35, "map_frequency_hz": 1000}, 30),
+    "sealed_tip_site": ({  # invented: synapse on the sealed tip of a thin terminal, no soma
+        "membrane": {"Rm": 12000, "Ri": 90, "Cm": 1.1},
+        "branches": [
+            {"id": "stem", "parent": None, "length": 150, "diameter": 1.8},
+            {"id": "tip", "parent": "stem",
+             "sections": [{"length": 40, "diameter": 0.9}, {"length": 60, "diameter": 0.45}], "end": "sealed"},
+            {"id": "side", "parent": "stem", "length": 200, "diameter": 1.3, "end": "infinite"},
+            {"id": "other", "parent": None, "length": 90, "diameter": 0.8, "end": {"G": 0.3, "C": 0.0}}],
+        "synapse": {"path": "tip", "path_distance": 250,
+                    "current": {"shape": "alpha", "tau": 0.5, "peak": 50}},
+        "map_spacing_um": 20}, 30),
 }
 TREE_NAMES = sorted(TREES)
 
@@ -297,9 +319,11 @@ class Mismatches:
 # =============================================================== engine vs reference
 @pytest.mark.parametrize("name", TREE_NAMES)
 def test_S10_steady_state(name):
-    """S10 (TWO_PORT): every steady-state value of the report against the nodal reference at
-    s = 0: input and transfer resistances, attenuation both ways (ratio, fold, log, percent),
-    X of the synapse, rho = G_dendrites(0)/G_soma, rho_inf = sum of stems' G_inf / G_soma (Rall 1959)."""
+    """S10: independent computation (mpmath nodal analysis); two-port after Hodgkin & Rushton
+    1946, Rall 1959, Rall 1977. Every steady-state value of the report against the nodal
+    reference at s = 0: input and transfer resistances, attenuation both ways (ratio, fold, log,
+    percent), X of the synapse, rho = G_dendrites(0)/G_soma and rho_inf = sum over the stems of
+    G_inf (of each stem's proximal section) / G_soma (Rall 1959)."""
     rep, ref, m = engine_report(name), reference_response(name, 0.0), Mismatches(name)
     t = reference_tree(name)
     site = _synapse_site(name)
@@ -327,9 +351,9 @@ def test_S10_steady_state(name):
 
 @pytest.mark.parametrize("name", TREE_NAMES)
 def test_S10_constants_and_geometry(name):
-    """S10 with C1-C5 (Rall 1959; Rall 1977; Johnston & Wu 1995): tau_m, lambda and L of every
-    branch and section, X at every terminal, and the soma's area, resistance, capacitance, tau,
-    recomputed from the scenario with mpmath."""
+    """S10: independent computation (mpmath) with C1-C5 (Rall 1959; Rall 1977; Johnston & Wu
+    1995): tau_m, lambda and L of every branch and section, X at every terminal, and the soma's
+    area, resistance, capacitance and tau, recomputed from the scenario with mpmath."""
     rep, (sc, _), m = engine_report(name), TREES[name], Mismatches(name)
     t = reference_tree(name)
     mem = sc["membrane"]
@@ -377,7 +401,9 @@ def _chain(t, tid):
 
 @pytest.mark.parametrize("name", TREE_NAMES)
 def test_S10_frequency_response(name):
-    """S10 (TWO_PORT) and F2 (0 Hz = steady state): |A|, log attenuation, unwrapped phase and
+    """S10: independent computation (mpmath nodal analysis); two-port after Hodgkin & Rushton
+    1946, Rall 1959, Rall 1977.
+    With F2 (0 Hz = steady state, derived): |A|, log attenuation, unwrapped phase and
     phase delay both ways, and the transfer, site-input and soma-input impedances, at 0 Hz and 20
     log-spaced frequencies from 0.1 Hz to 10 kHz. The reference phase is the continuous phase of
     V along the path (see tests/reference/nodal.py); the transfer impedance's phase is
@@ -406,7 +432,8 @@ def test_S10_frequency_response(name):
 
 @pytest.mark.parametrize("name", TREE_NAMES)
 def test_S10_centroid_delays(name):
-    """S10 and Agmon-Snir & Segev 1993 (J Neurophysiol 70:2066): the centroid (transfer) delay is
+    """S10: independent computation (mpmath nodal analysis) and Agmon-Snir & Segev 1993
+    (J Neurophysiol 70:2066): the centroid (transfer) delay is
     -d/ds ln A(s) at s = 0, here by mpmath.diff of the nodal solution; it is also the 0 Hz limit
     of phase_delay_ms (DEVELOPERS.md)."""
     rep, m, t = engine_report(name), Mismatches(name), reference_tree(name)
@@ -437,7 +464,9 @@ def _map_picks(tm, t):
 
 @pytest.mark.parametrize("name", TREE_NAMES)
 def test_S10_tree_map_points(name):
-    """S10 (TWO_PORT): tree-map entries recomputed by placing a node at each entry's position in
+    """S10: independent computation (mpmath nodal analysis); two-port after Hodgkin & Rushton
+    1946, Rall 1959, Rall 1977.
+    Tree-map entries recomputed by placing a node at each entry's position in
     the reference (positions are read from the map; values never): A and log attenuation both
     ways (|A| where map_frequency_hz > 0), path distance and X."""
     rep, m = engine_report(name), Mismatches(name)
