@@ -1,0 +1,115 @@
+"""The `somaward` command: same report as solve(), every format, and its error paths.
+
+Physics values checked here come from closed forms: λ = √(Rm·d/(4Ri)) = 500 µm for d = 1 µm,
+Rm = 20 000 Ω·cm², Ri = 200 Ω·cm (Rall 1977; computed), and R∞·coth(1) = 1671.81 MΩ (Rall 1959;
+computed with mpmath below).
+"""
+
+import json
+import subprocess
+import sys
+
+import mpmath
+import pytest
+
+import somaward
+
+EXAMPLE = {"membrane": {"Rm": 20000, "Ri": 150, "Cm": 1.0},
+           "soma": {"diameter": 20},
+           "branches": [{"id": "trunk", "parent": None, "length": 400, "diameter": 3.0},
+                        {"id": "tuft", "parent": "trunk", "length": 300, "diameter": 1.0, "end": "sealed"}],
+           "synapse": {"branch": "tuft", "distance": 250,
+                       "current": {"shape": "alpha", "tau": 0.5, "peak": 50}}}
+
+
+def run(*args, stdin=None):
+    return subprocess.run([sys.executable, "-m", "somaward", *args], input=stdin,
+                          capture_output=True, text=True, timeout=120)
+
+
+def test_report_equals_solve(tmp_path):
+    path = tmp_path / "cell.json"
+    path.write_text(json.dumps(EXAMPLE))
+    out = run("report", str(path))
+    assert out.returncode == 0, out.stderr
+    assert json.loads(out.stdout) == json.loads(json.dumps(somaward.solve(EXAMPLE)))
+
+
+def test_report_reads_stdin():
+    out = run("report", "-", stdin=json.dumps(EXAMPLE))
+    assert out.returncode == 0
+    assert json.loads(out.stdout)["transfer_resistance_Mohm"] == pytest.approx(
+        somaward.solve(EXAMPLE)["transfer_resistance_Mohm"], rel=1e-15)
+
+
+@pytest.mark.parametrize("fmt", ["md", "tsv", "csv", "latex"])
+def test_every_format(fmt):
+    out = run("report", "-", "--format", fmt, stdin=json.dumps(EXAMPLE))
+    assert out.returncode == 0 and out.stdout.strip()
+    assert "Somaward" in out.stdout
+
+
+def test_md_has_methods_paragraph():
+    text = run("report", "-", "--format", "md", stdin=json.dumps(EXAMPLE)).stdout
+    assert "## Methods" in text and "Rall 1959" in text and "Ri = 150 Ω·cm" in text
+
+
+def test_demo_runs_and_says_invented():
+    out = run("demo", "--format", "json")
+    assert out.returncode == 0
+    assert "Invented" in json.loads(out.stdout)["scenario"]["title"]
+
+
+def test_constants_closed_forms():
+    """λ = 500 µm (Rall 1977; computed); R∞ coth L at L = 1 (Rall 1959) via mpmath."""
+    out = run("constants", "--Rm", "20000", "--Ri", "200", "--Cm", "1", "--diameter", "1", "--length", "500")
+    assert out.returncode == 0
+    lines = {line.split("  ")[0].strip(): line.split()[-2] for line in out.stdout.splitlines()}
+    assert float(lines["space constant λ"]) == pytest.approx(500.0, rel=1e-6)
+    r_inf = 2 / mpmath.pi * mpmath.sqrt(20000 * 200) * mpmath.mpf("1e-4") ** mpmath.mpf(-1.5) * 1e-6
+    sealed = float(r_inf * mpmath.coth(1))
+    assert float(lines["input resistance, sealed end (R∞·coth L)"]) == pytest.approx(sealed, rel=1e-5)
+
+
+@pytest.mark.parametrize("args", [["--help"], ["report", "--help"], ["demo", "--help"],
+                                  ["constants", "--help"], ["schema", "--help"]])
+def test_help_everywhere(args):
+    out = run(*args)
+    assert out.returncode == 0 and "usage" in out.stdout
+
+
+def _bad(mutate):
+    sc = json.loads(json.dumps(EXAMPLE))
+    mutate(sc)
+    return json.dumps(sc)
+
+
+@pytest.mark.parametrize("stdin,message", [
+    (_bad(lambda s: s["branches"][1].__setitem__("diameter", -1)), r"^somaward: error: branches\[1\]\.diameter: must be > 0 µm, got -1$"),
+    (_bad(lambda s: s["branches"][1].__setitem__("parent", "trnk")), r"branches\[1\]\.parent: no branch has id 'trnk'; did you mean 'trunk'\?"),
+    (_bad(lambda s: s["branches"][1].__setitem__("diamter", 1)), r"branches\[1\]\.diamter: unknown key; did you mean 'diameter'\?"),
+    (_bad(lambda s: s["branches"][1].__setitem__("id", "trunk")), r"branches\[1\]\.id: duplicate id 'trunk'"),
+    (_bad(lambda s: s["branches"][0].__setitem__("parent", "tuft")), r"parent: the parent chain loops back"),
+    (_bad(lambda s: s["synapse"].__setitem__("distance", 301)), r"synapse\.distance: must be ≤ 300 µm"),
+    (_bad(lambda s: s["membrane"].__setitem__("Ri", "150")), r"membrane\.Ri: must be a number \(Ω·cm\), got '150'"),
+    ('{"membrane": ', r"stdin: not valid JSON: .* at line 1 column"),
+    ("[1, 2]", r"scenario: must be a JSON object"),
+])
+def test_error_paths(stdin, message):
+    """One line on stderr naming the JSON path, exit code 2, no traceback (common practice)."""
+    out = run("report", "-", stdin=stdin)
+    assert out.returncode == 2
+    assert out.stdout == ""
+    err = out.stderr.rstrip("\n")
+    assert "\n" not in err and "Traceback" not in err
+    assert __import__("re").search(message, err), err
+
+
+def test_missing_file():
+    out = run("report", "/nonexistent/cell.json")
+    assert out.returncode == 2 and "cannot read the file" in out.stderr
+
+
+def test_bad_constant_argument():
+    out = run("constants", "--Rm", "-5", "--Ri", "100", "--diameter", "1")
+    assert out.returncode == 2 and "must be a finite number > 0, got -5" in out.stderr
