@@ -1,0 +1,129 @@
+// Somaward's page: boots the worker, keeps the form and the results in step.
+// body[data-state] = loading | ready | error; body[data-results] = none | fresh | stale.
+// Timings (performance.now(), ms) are left on body for bench/page.py:
+// data-t-first-result, data-t-input, data-t-sent, data-t-shown.
+import { EngineClient } from "./worker-client.js";
+import { readForm, scenarioFromValues, showMessage, clearMessages } from "./quick-cable.js";
+import { renderResults } from "./results.js";
+import { renderPlots } from "./charts.js";
+
+const DEBOUNCE_MS = 250;
+const body = document.body;
+const config = JSON.parse(document.getElementById("somaward-config").textContent);
+const status = document.getElementById("status");
+const form = document.getElementById("quick-cable-form");
+const reportHolder = document.createElement("script");
+reportHolder.type = "application/json";
+reportHolder.id = "report-json";
+document.body.append(reportHolder);
+
+let client = null;
+let latest = 0;       // sequence number of the newest request
+let timer = null;
+let haveResult = false;
+let readyText = "";
+
+function setStatus(text) {
+  status.textContent = text;
+}
+
+function fail(message) {
+  body.dataset.state = "error";
+  document.getElementById("boot-error-text").textContent = message;
+  document.getElementById("boot-error").hidden = false;
+  setStatus("Stopped: the calculator could not start.");
+  if (client) client.terminate();
+}
+
+function markStale() {
+  if (haveResult) body.dataset.results = "stale";
+}
+
+function show(report, json) {
+  renderResults(document.getElementById("results-body"), report);
+  renderPlots(document.getElementById("plots"), report);
+  reportHolder.textContent = json;
+  body.dataset.results = "fresh";
+  body.dataset.tShown = performance.now().toFixed(2);
+  if (!haveResult) {
+    haveResult = true;
+    body.dataset.tFirstResult = body.dataset.tShown;
+    body.dataset.tFirstResultEpoch = (performance.timeOrigin + Number(body.dataset.tShown)).toFixed(1);
+    registerServiceWorker();
+  }
+}
+
+async function recompute() {
+  const mine = ++latest;
+  const scenario = scenarioFromValues(readForm(form));
+  body.dataset.tSent = performance.now().toFixed(2);
+  try {
+    const { value, json } = await client.call("solve", scenario);
+    if (mine !== latest) return;
+    clearMessages(form);
+    body.dataset.input = "valid";
+    show(value, json);
+  } catch (err) {
+    if (mine !== latest) return;
+    if (err.type === "BootError") return;  // the boot error notice says it all
+    body.dataset.input = "invalid";
+    markStale();
+    showMessage(form, err.message);
+  }
+}
+
+function onInput(event) {
+  body.dataset.tInput = (event.timeStamp || performance.now()).toFixed(2);
+  markStale();
+  clearTimeout(timer);
+  timer = setTimeout(recompute, DEBOUNCE_MS);
+}
+
+function registerServiceWorker() {
+  const note = document.getElementById("offline-status");
+  if (!("serviceWorker" in navigator) || !window.isSecureContext) {
+    note.textContent = "offline use needs https or localhost";
+    return;
+  }
+  navigator.serviceWorker.register("sw.js").then(() => navigator.serviceWorker.ready).then(() => {
+    note.textContent = "works offline on this device";
+    body.dataset.offline = "ready";
+  }).catch((err) => {
+    note.textContent = `offline use not available (${err.message})`;
+  });
+}
+
+const handlers = {
+  progress: (msg) => setStatus(readyText ? `${readyText} ${msg.text}` : msg.text),
+  ready: (msg) => {
+    body.dataset.state = "ready";
+    readyText = `Ready (engine ${msg.versions.engine ?? "?"}, numpy ${msg.versions.numpy}).`;
+    setStatus(readyText);
+  },
+  bootError: (message) => fail(message),
+  scipy: (msg) => {
+    body.dataset.scipy = msg.ok ? "ready" : "error";
+    if (!msg.ok) setStatus(`${readyText} scipy could not load (${msg.message}); results that need it will fail.`);
+    else setStatus(`${readyText} scipy loaded.`);
+  },
+};
+
+function start() {
+  if (location.protocol === "file:") return;  // js/file-notice.js explains what to do
+  client = new EngineClient(new URL(`./worker.js?v=${config.build}`, import.meta.url), config, handlers);
+  setTimeout(() => {
+    if (body.dataset.state === "loading") {
+      fail(`Python did not start within ${config.bootTimeoutMs / 1000} s (${status.textContent}). ` +
+        "The connection may be slow, or the browser blocked WebAssembly.");
+    }
+  }, config.bootTimeoutMs);
+  form.addEventListener("input", onInput);
+  form.addEventListener("submit", (event) => {
+    event.preventDefault();
+    clearTimeout(timer);
+    recompute();
+  });
+  recompute();
+}
+
+start();

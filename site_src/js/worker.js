@@ -1,0 +1,141 @@
+// Somaward's compute worker (a module Web Worker).
+// Loads Pyodide, numpy and the engine once, then answers {id, fn, args} with
+// {id, ok, value | error}; args and value are JSON strings, never proxies.
+// scipy loads in the background only after the first answer, so it never delays it.
+// Other messages it sends: {type: "progress", stage, text}, {type: "ready", versions},
+// {type: "boot-error", message}, {type: "scipy", ok, message}.
+
+let ready = null;         // promise of the bridge's call function
+let scipyStarted = false;
+let lockPackages = {};    // lock-file name -> file name, to name the file in errors
+
+const post = (msg) => self.postMessage(msg);
+const progress = (stage, text) => post({ type: "progress", stage, text });
+
+async function fetchLock(lockURL) {
+  let response;
+  try {
+    response = await fetch(lockURL);
+  } catch (err) {
+    throw new Error(`could not fetch ${lockURL}: ${err.message}`);
+  }
+  if (!response.ok) throw new Error(`could not fetch ${lockURL}: HTTP ${response.status}`);
+  return response.json();
+}
+
+// In --cdn mode the science packages come from the CDN but our wheels from this site:
+// give our wheels absolute URLs and hand Pyodide the patched lock as a blob URL.
+function lockForPyodide(lock, lockURL, config) {
+  if (!config.cdn) return lockURL;
+  const patched = structuredClone(lock);
+  for (const entry of Object.values(patched.packages)) {
+    if (!/^https?:/.test(entry.file_name)) {
+      entry.file_name = new URL(entry.file_name, lockURL).href;
+    }
+  }
+  const blob = new Blob([JSON.stringify(patched)], { type: "application/json" });
+  return URL.createObjectURL(blob);
+}
+
+// loadPackage does not reject on a 404 or a checksum mismatch: collect its error
+// messages and fail loudly, naming the files.
+async function loadChecked(pyodide, names) {
+  const errors = [];
+  await pyodide.loadPackage(names, {
+    messageCallback: () => {},
+    errorCallback: (m) => errors.push(m),
+    checkIntegrity: true,
+  });
+  const missing = names.filter((n) => !(n in pyodide.loadedPackages));
+  if (errors.length || missing.length) {
+    const files = names.map((n) => lockPackages[n] || n).join(", ");
+    const detail = errors.join(" ").replace(/\s+/g, " ").trim() || "not installed";
+    throw new Error(`could not load ${files}: ${detail}`);
+  }
+}
+
+async function boot(config) {
+  const base = self.location.href;
+  const indexURL = new URL(config.indexURL, base).href;
+  const lockURL = new URL(config.lockURL, base).href;
+  progress("python", "loading Python…");
+  const lock = await fetchLock(lockURL);
+  for (const [name, entry] of Object.entries(lock.packages)) {
+    lockPackages[name] = entry.file_name.split("/").pop();
+  }
+  let mod;
+  try {
+    mod = await import(indexURL + "pyodide.mjs");
+  } catch (err) {
+    throw new Error(`could not load ${indexURL}pyodide.mjs: ${err.message}`);
+  }
+  const stderr = [];
+  let pyodide;
+  try {
+    pyodide = await mod.loadPyodide({
+      indexURL,
+      lockFileURL: lockForPyodide(lock, lockURL, config),
+      stdout: () => {},
+      stderr: (line) => stderr.push(line),
+    });
+  } catch (err) {
+    const tail = stderr.slice(-2).join(" ");
+    throw new Error(`Python did not start (pyodide.asm.wasm, python_stdlib.zip): ${err.message} ${tail}`.trim());
+  }
+  progress("numpy", "loading numpy…");
+  await loadChecked(pyodide, ["numpy"]);
+  progress("engine", "loading the engine…");
+  await loadChecked(pyodide, ["somaward", "somaward-page"]);
+  const bridge = pyodide.pyimport("somaward_page");
+  const versions = JSON.parse(bridge.versions());
+  post({ type: "ready", versions });
+  return { pyodide, bridge };
+}
+
+async function loadScipy() {
+  if (scipyStarted) return;
+  scipyStarted = true;
+  try {
+    const { pyodide } = await ready;
+    progress("scipy", "loading scipy in the background…");
+    await loadChecked(pyodide, ["scipy"]);
+    post({ type: "scipy", ok: true, message: "scipy loaded" });
+  } catch (err) {
+    post({ type: "scipy", ok: false, message: err.message });
+  }
+}
+
+function answer(bridge, id, fn, args) {
+  let result = null;
+  try {
+    result = bridge.call(fn, args);
+    const [ok, payload] = result.toJs();
+    if (ok) post({ id, ok: true, value: payload });
+    else post({ id, ok: false, error: JSON.parse(payload) });
+  } catch (err) {
+    post({ id, ok: false, error: { type: "WorkerError", message: String(err.message || err) } });
+  } finally {
+    if (result) result.destroy();
+  }
+}
+
+self.onmessage = async (event) => {
+  const msg = event.data;
+  if (msg.type === "init") {
+    ready = boot(msg.config);
+    ready.catch((err) => post({ type: "boot-error", message: err.message }));
+    // If nobody asks for a result soon, load scipy anyway.
+    ready.then(() => setTimeout(loadScipy, 3000), () => {});
+    return;
+  }
+  const { id, fn, args } = msg;
+  let bridge;
+  try {
+    ({ bridge } = await ready);
+  } catch (err) {
+    post({ id, ok: false, error: { type: "BootError", message: err.message } });
+    return;
+  }
+  answer(bridge, id, fn, args);
+  setTimeout(loadScipy, 0);
+};

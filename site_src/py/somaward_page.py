@@ -1,0 +1,45 @@
+"""The page's door into the engine, run inside the Web Worker under Pyodide.
+
+Requests and answers cross the worker boundary as JSON strings, never as proxies:
+``call(fn, args_json)`` takes the name of an engine function and a JSON array of its
+arguments and returns a pair ``(ok, payload)`` where payload is a JSON string: the
+function's value when ok, else ``{"type": ..., "message": ...}``. A ``ScenarioError`` keeps the
+engine's own one-line message (the same wording as the CLI's), so the page can show it
+beside the field its JSON path names.
+"""
+from __future__ import annotations
+
+import json
+import traceback
+
+import somaward
+
+# Engine functions the page may call; later sections add theirs here.
+FUNCTIONS = ("solve",)
+
+
+def _error(kind: str, message: str) -> tuple[bool, str]:
+    return False, json.dumps({"type": kind, "message": message})
+
+
+def call(fn: str, args_json: str) -> tuple[bool, str]:
+    """Run ``somaward.<fn>(*args)``; return ``(ok, JSON string of value or error)``."""
+    if fn not in FUNCTIONS:
+        return _error("UnknownFunction", f"no engine function '{fn}' for the page")
+    try:
+        args = json.loads(args_json)
+        value = getattr(somaward, fn)(*args)
+        return True, json.dumps(value, allow_nan=False)
+    except somaward.ScenarioError as exc:
+        return _error("ScenarioError", str(exc))
+    except Exception as exc:  # noqa: BLE001 (anything else is a bug; say so, one line)
+        last = traceback.format_exception_only(type(exc), exc)[-1].strip()
+        return _error("InternalError", last)
+
+
+def versions() -> str:
+    """Versions of what the worker loaded, as a JSON string."""
+    import numpy
+
+    return json.dumps({"engine": getattr(somaward, "__version__", None),
+                       "numpy": numpy.__version__})
