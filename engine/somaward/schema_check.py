@@ -11,6 +11,7 @@ and x-message. ``tests/test_schema.py`` checks that it agrees with the ``jsonsch
 
 import copy
 import difflib
+import functools
 import json
 import math
 from importlib import resources
@@ -23,9 +24,19 @@ _TYPE_WORDS = {"object": "an object", "array": "a list", "string": "a string", "
                "null": "null", "boolean": "true or false"}
 
 
+@functools.lru_cache(maxsize=1)
+def _schema_text():
+    return resources.files("somaward").joinpath("scenario.schema.json").read_text("utf-8")
+
+
+@functools.lru_cache(maxsize=1)
+def _cached_schema():
+    return json.loads(_schema_text())
+
+
 def load_schema():
-    """The scenario JSON Schema shipped inside the package, as a dict."""
-    return json.loads(resources.files("somaward").joinpath("scenario.schema.json").read_text("utf-8"))
+    """The scenario JSON Schema shipped inside the package, as a new dict."""
+    return json.loads(_schema_text())
 
 
 def describe(value, limit=40):
@@ -236,7 +247,7 @@ def check(value, schema=None):
         One line naming the JSON path and the rule, e.g.
         ``branches[2].diameter: must be > 0 µm, got -1``.
     """
-    schema = load_schema() if schema is None else schema
+    schema = _cached_schema() if schema is None else schema
     if not isinstance(value, dict):
         raise ScenarioError("scenario", f"must be a JSON object, got {describe(value)}")
     return _Checker(schema).check(value, schema, "")
