@@ -17,9 +17,9 @@ import math
 import numpy as np
 
 from .sites import point_terms
-from .tree import solve_tree
+from .tree import path_to, solve_tree
 
-__all__ = ["laplace_of_hz", "site_response", "centroid_delays_ms", "CHUNK_VALUES"]
+__all__ = ["laplace_of_hz", "site_response", "centroid_delays_ms", "complex_step_ms", "CHUNK_VALUES"]
 
 CHUNK_VALUES = 400_000       # sections × frequencies held in memory at once
 
@@ -40,20 +40,29 @@ def site_response(tree, sec, y_um, s):
     """
     s = np.atleast_1d(np.asarray(s, dtype=complex))
     chunk = max(1, CHUNK_VALUES // max(tree.n_sections, 1))
+    path = path_to(tree, sec)
     parts = []
     for lo in range(0, len(s), chunk):
-        sol = solve_tree(tree, s[lo:lo + chunk])
+        sol = solve_tree(tree, s[lo:lo + chunk], path=path)
         t = point_terms(sol, [sec], [y_um])
         parts.append((t["up"][0], t["down"][0], -np.log(t["y_node"][0]), -np.log(sol.y_root)))
     keys = ("up", "down", "ln_z_site", "ln_z_root")
     return {k: np.concatenate([p[j] for p in parts]) for j, k in enumerate(keys)}
 
 
-def centroid_delays_ms(tree, sec, y_um):
-    """Centroid transfer delays (ms): site→soma and soma→site, by the complex step at s = 0."""
-    tau_scale = max(tree.tau_ms, _slowest_load_ms(tree), 1e-6)
-    h = 1e-10 / tau_scale
-    r = site_response(tree, sec, y_um, [1j * h])
+def complex_step_ms(tree):
+    """The step h (1/ms) of the complex-step derivative at s = 0: h·τ = 1e-10 for the slowest τ."""
+    return 1e-10 / max(tree.tau_ms, _slowest_load_ms(tree), 1e-6)
+
+
+def centroid_delays_ms(tree, sec, y_um, response=None):
+    """Centroid transfer delays (ms): site→soma and soma→site, by the complex step at s = 0.
+
+    ``response``: a :func:`site_response` at s = i·h, h from :func:`complex_step_ms`, if the
+    caller computed it with other frequencies.
+    """
+    h = complex_step_ms(tree)
+    r = site_response(tree, sec, y_um, [1j * h]) if response is None else response
     return float(-r["up"][0].imag / h), float(-r["down"][0].imag / h)
 
 

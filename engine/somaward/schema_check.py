@@ -182,6 +182,9 @@ class _Checker:
         return out
 
     def one_of(self, value, node, path):
+        plausible = self.plausible(value, node["oneOf"])
+        if len(plausible) == 1:            # the form is clear from the keys: check it alone
+            return self.check(value, plausible[0], path)
         outcomes = []                       # (filled value, None) or (None, error) per alternative
         for alt in node["oneOf"]:
             try:
@@ -200,6 +203,24 @@ class _Checker:
         if isinstance(value, dict):
             raise ScenarioError(path or "scenario", message)
         raise ScenarioError(path or "scenario", f"{message}; got {describe(value)}")
+
+    def plausible(self, value, alts):
+        """Alternatives of the value's type whose keys and constants it matches (objects only)."""
+        out = []
+        for alt in alts:
+            a = self.resolve(alt)
+            if "type" in a and not _is_type(value, a["type"]):
+                continue
+            if isinstance(value, dict):
+                props = a.get("properties", {})
+                if a.get("additionalProperties", True) is False and any(k not in props for k in value):
+                    continue
+                if any("const" in p and k in value and value[k] != p["const"] for k, p in props.items()):
+                    continue
+                if any(k not in value for k in a.get("required", [])):
+                    continue
+            out.append(a)
+        return out
 
     def closest(self, value, alts, path):
         """The alternative a failing value most plausibly meant, or None when it is unclear.

@@ -31,7 +31,7 @@ import numpy as np
 from . import cable
 from .membrane import input_resistance_infinite_Mohm, membrane_time_constant_ms, space_constant_um
 
-__all__ = ["Tree", "TreeSolution", "build_tree", "solve_tree", "END_CODES"]
+__all__ = ["Tree", "TreeSolution", "build_tree", "solve_tree", "path_to", "END_CODES"]
 
 END_CODES = {"internal": 0, "sealed": 1, "killed": 2, "infinite": 3, "load": 4}
 
@@ -206,10 +206,12 @@ class TreeSolution:
     y_soma: np.ndarray        # (F,) the soma's own admittance (0 without a soma)
 
 
-def solve_tree(tree, s):
+def solve_tree(tree, s, path=None):
     """Run the up and down passes of ``tree`` at Laplace variables ``s`` (1/ms).
 
     ``s`` real (e.g. ``[0.0]``) gives real arithmetic; complex ``s = iω`` the frequency response.
+    ``path``: section indices from the recording site outwards (e.g. to a synapse); when given,
+    the down pass runs along them only, and only points on that path may be evaluated.
     """
     s = np.atleast_1d(np.asarray(s))
     k = np.sqrt(1.0 + s * tree.tau_ms)
@@ -219,7 +221,8 @@ def solve_tree(tree, s):
     up = _up_pass(tree, s, y0, m)
     y_soma = (tree.soma_g_uS + s * tree.soma_c_nF) * np.ones_like(k)
     y_root = y_soma + up["yload"][-1]
-    down = _down_pass(tree, y0, kappa, m, up, y_root)
+    levels = tree.levels if path is None else tuple((int(i), int(i) + 1) for i in path)
+    down = _down_pass(tree, levels, y0, kappa, m, up, y_root)
     return TreeSolution(tree=tree, s=s, k=k, y0=y0, m=m, y_root=y_root, y_soma=y_soma, **up, **down)
 
 
@@ -249,13 +252,22 @@ def _up_pass(tree, s, y0, m):
     return {"gam": gam, "opg": opg, "omg": omg, "yin": yin, "yload": num}
 
 
-def _down_pass(tree, y0, kappa, m, up, y_root):
+def path_to(tree, sec):
+    """Section indices from the recording site out to section ``sec``."""
+    chain = []
+    while sec >= 0:
+        chain.append(int(sec))
+        sec = int(tree.parent[sec])
+    return chain[::-1]
+
+
+def _down_pass(tree, levels, y0, kappa, m, up, y_root):
     gam, opg, yin, yload = up["gam"], up["opg"], up["yin"], up["yload"]
     gup, opu, omu = (np.empty_like(y0) for _ in range(3))
     down_log, up_log = np.empty_like(y0), np.empty_like(y0)
     node_y = np.empty_like(y0)        # total admittance at each section's distal node
     zero = np.zeros(y0.shape[1], dtype=y0.dtype)
-    for lo, hi in tree.levels:
+    for lo, hi in levels:
         p = tree.parent[lo:hi]
         root = (p < 0)[:, None]
         pp = np.maximum(p, 0)
