@@ -10,6 +10,7 @@ import math
 import numpy as np
 
 from . import __version__
+from .equivalent import equivalent_cylinder
 from .frequency import centroid_delays_ms, laplace_of_hz, site_response
 from .maps import map_points, path_points, tree_map_logs
 from .sanity import geometry_warnings, membrane_warnings
@@ -218,6 +219,7 @@ def solve(scenario):
         "centroid_delay_soma_to_site_ms": _num(centroid[1]),
         "path_profile": _path_profile(tree, sol_dc, sec, y, sc["map_spacing_um"]),
         "tree_map": _tree_map(tree, sc),
+        "equivalent_cylinder": equivalent_cylinder(tree, sc, sec, y),
     }
     report["warnings"] = warnings
     report["scenario"] = sc

@@ -50,7 +50,7 @@ def validate(scenario):
 def _ordered(out, given):
     """Keys in a stable order: the schema's, so that exports and permalinks are reproducible."""
     order = ["title", "notes", "membrane", "soma", "branches", "synapse",
-             "frequencies_hz", "map_spacing_um", "map_frequency_hz"]
+             "frequencies_hz", "map_spacing_um", "map_frequency_hz", "equivalent_cylinder"]
     return {k: out[k] for k in order if k in out}
 
 

@@ -1,0 +1,504 @@
+"""Rall's equivalent cylinder: the conditions for the reduction, the cylinder, and its error.
+
+Rall (1962; 1964) showed that a passive tree collapses onto one cylinder when
+
+1. at every branch point the **3/2 power rule** holds, d_parent^{3/2} = Σ d_child^{3/2}
+   (d_parent at the parent's distal end, each d_child at the child's proximal section);
+2. every terminal lies at the **same electrotonic distance** X = Σ ℓ_i/λ_i from the soma;
+3. Rm and Ri are **uniform** over the dendrites (always true here: the engine takes one
+   membrane; the soma may keep its own Rm, and the cylinder keeps the same soma);
+4. the terminals have **like ends**: all sealed, all killed, or all infinite (for infinite ends
+   condition 2 is not needed: every subtree then presents the admittance of a semi-infinite
+   cylinder), or all lumped loads whose G and C scale as d^{3/2} (the same load normalised by the
+   terminal's G∞ ∝ d^{3/2}).
+
+Then the voltage for current injected at the soma depends on X only, and the tree's input
+admittance at the soma equals that of one cylinder of diameter
+
+    d_eq = (Σ_stems d_stem^{3/2})^{2/3}
+
+(over the stems leaving the soma; the trunk's own diameter when there is one stem) and
+electrotonic length L = the common terminal X, at every frequency (Laplace variable s). With a
+soma of conductance G_s and a sealed end (Rall 1959; Rall 1969)
+
+    Y_in(s) = G_s (1 + sτ) + √(1 + sτ) · tanh(√(1 + sτ) L) / R∞(d_eq).
+
+**What the cylinder represents.** Soma→site attenuation and the transfer resistance for a site
+at electrotonic distance X equal the cylinder's at X. A point on the cylinder, however, stands
+for input spread over *every* branch at that X at once; a single synapse's own input resistance
+and its site→soma attenuation are *not* given by the cylinder, and are reported here from the
+full tree.
+
+**Rules chosen here** (stated also in the report):
+
+* Tolerance: each departure is relative — |ratio − 1| at branch points and section joins,
+  |X_t/L − 1| at terminals, |g_t/ḡ − 1| for normalised loads — and must be ≤ ``tolerance``
+  (scenario key ``equivalent_cylinder.tolerance``, default 0.05).
+* Tapers: a step in diameter inside a branch (a join between two sections) is a branch point
+  with one child, so the 3/2 rule there reads d_prev^{3/2} = d_next^{3/2}: a stepwise taper
+  breaks the reduction unless its steps are within the tolerance. (Trees whose Σ d^{3/2} at each
+  X varies smoothly reduce to a non-uniform equivalent cable instead; that is not done here.)
+* L for unequal terminal X: the membrane-area-weighted mean of the terminal X values, each
+  terminal weighted by the membrane area π·d·ℓ of its terminal branch; the range min–max is
+  reported beside it. With infinite ends the cylinder is given the largest terminal X (any
+  length gives the same semi-infinite cylinder; this one contains every site).
+* Mixed ends: the cylinder takes the end shared by most terminals, and the verdict is no.
+
+The cylinder is built as a one-branch scenario and solved by the engine's own tree code
+(:mod:`tree`, :mod:`sites`), so its numbers come from the same machinery as the tree's.
+
+References
+----------
+.. [1] Rall W (1959) Branching dendritic trees and motoneuron membrane resistivity.
+   Exp Neurol 1:491–527.
+.. [2] Rall W (1962) Theory of physiological properties of dendrites. Ann NY Acad Sci 96:1071–1092.
+.. [3] Rall W (1964) Theoretical significance of dendritic trees for neuronal input-output
+   relations. In: Reiss RF (ed) Neural Theory and Modeling. Stanford University Press.
+.. [4] Rall W (1969) Time constants and electrotonic length of membrane cylinders and neurons.
+   Biophys J 9:1483–1508.
+"""
+
+import math
+from collections import Counter
+
+import numpy as np
+
+from .sites import point_terms
+from .tree import END_CODES, build_tree, solve_tree
+
+__all__ = ["DEFAULT_TOLERANCE", "rule_ratio", "equivalent_diameter_um", "branch_point_rows",
+           "section_join_rows", "terminal_rows", "cylinder_scenario", "compare_logs",
+           "equivalent_cylinder", "rule_table_rows", "methods_sentence", "summary_lines"]
+
+DEFAULT_TOLERANCE = 0.05
+_END_NAMES = {v: k for k, v in END_CODES.items()}
+_BEYOND = 1e-12          # relative slack when placing the site on the cylinder
+
+
+def rule_ratio(d_parent_um, d_children_um):
+    """d_parent^{3/2} / Σ d_child^{3/2} at one branch point (1 when the 3/2 rule holds; Rall 1962)."""
+    return float(d_parent_um) ** 1.5 / math.fsum(float(d) ** 1.5 for d in d_children_um)
+
+
+def equivalent_diameter_um(stem_diameters_um):
+    """d_eq = (Σ d_stem^{3/2})^{2/3} (µm) of the cylinder equivalent to the stems (Rall 1962).
+
+    Examples
+    --------
+    >>> round(equivalent_diameter_um([1.0, 1.0, 1.0]), 4)     # 3^{2/3}
+    2.0801
+    """
+    return math.fsum(float(d) ** 1.5 for d in stem_diameters_um) ** (2.0 / 3.0)
+
+
+def _sections_of_branch(tree, b):
+    """Section indices of branch ``b`` from proximal to distal."""
+    first, last = tree.branch_sections[b]
+    chain = [last]
+    while chain[-1] != first:
+        chain.append(int(tree.parent[chain[-1]]))
+    return chain[::-1]
+
+
+def _children(tree):
+    kids = [[] for _ in tree.branch_ids]
+    for b, p in enumerate(tree.branch_parent):
+        if p >= 0:
+            kids[int(p)].append(b)
+    return kids
+
+
+def _ok(departure, tolerance):
+    return bool(abs(departure) <= tolerance * (1 + 1e-12))
+
+
+def branch_point_rows(tree, tolerance=DEFAULT_TOLERANCE):
+    """The 3/2 rule at every branch point (branches with children), in branch-table order.
+
+    Returns
+    -------
+    list of dict
+        ``parent`` (branch id), ``children`` (ids), ``parent_diameter_um`` (distal section),
+        ``child_diameters_um`` (proximal sections), ``ratio`` = d_p^{3/2}/Σ d_c^{3/2},
+        ``departure`` = ratio − 1 (signed), ``ok`` (|departure| ≤ tolerance).
+    """
+    rows = []
+    for b, kids in enumerate(_children(tree)):
+        if not kids:
+            continue
+        d_p = float(tree.diameter_um[tree.branch_sections[b][1]])
+        d_c = [float(tree.diameter_um[tree.branch_sections[c][0]]) for c in kids]
+        ratio = rule_ratio(d_p, d_c)
+        rows.append({"parent": tree.branch_ids[b], "children": [tree.branch_ids[c] for c in kids],
+                     "parent_diameter_um": d_p, "child_diameters_um": d_c, "ratio": ratio,
+                     "departure": ratio - 1.0, "ok": _ok(ratio - 1.0, tolerance)})
+    return rows
+
+
+def section_join_rows(tree, tolerance=DEFAULT_TOLERANCE):
+    """The 3/2 rule at joins between sections of one branch: d_prev^{3/2} = d_next^{3/2}.
+
+    Returns
+    -------
+    list of dict
+        ``branch``, ``section`` (index of the distal section of the join, from 0),
+        ``diameter_before_um``, ``diameter_after_um``, ``ratio``, ``departure``, ``ok``.
+    """
+    rows = []
+    for b, bid in enumerate(tree.branch_ids):
+        idx = _sections_of_branch(tree, b)
+        for j in range(1, len(idx)):
+            d0, d1 = float(tree.diameter_um[idx[j - 1]]), float(tree.diameter_um[idx[j]])
+            ratio = rule_ratio(d0, [d1])
+            rows.append({"branch": bid, "section": j, "diameter_before_um": d0, "diameter_after_um": d1,
+                         "ratio": ratio, "departure": ratio - 1.0, "ok": _ok(ratio - 1.0, tolerance)})
+    return rows
+
+
+def _terminal_geometry(tree):
+    """(branch index, distal section, terminal X, membrane area µm²) of each terminal branch."""
+    out = []
+    for b in np.flatnonzero(tree.terminal_branch):
+        idx = _sections_of_branch(tree, int(b))
+        last = idx[-1]
+        x_end = float(tree.x_start[last] + tree.electrotonic_length[last])
+        area = math.fsum(math.pi * tree.diameter_um[i] * tree.length_um[i] for i in idx)
+        out.append((int(b), last, x_end, area))
+    return out
+
+
+def _end_name(tree, sec):
+    return _END_NAMES[int(tree.end_code[sec])]
+
+
+def _common_end(tree, geometry):
+    """The end kind shared by most terminals (first seen wins a tie) and whether all share it."""
+    names = [_end_name(tree, sec) for _, sec, _, _ in geometry]
+    counts = Counter(names)
+    best = max(counts.values())
+    common = next(n for n in names if counts[n] == best)
+    return common, len(counts) == 1
+
+
+def _load_scales(tree, geometry):
+    """G/d^{3/2} (µS/µm^{3/2}) and C/d^{3/2} (nF/µm^{3/2}) of each terminal's lumped load."""
+    g, c = [], []
+    for _, sec, _, _ in geometry:
+        w = float(tree.diameter_um[sec]) ** 1.5
+        g.append(float(tree.end_g_uS[sec]) / w)
+        c.append(float(tree.end_c_nF[sec]) / w)
+    return g, c
+
+
+def _rel(value, ref):
+    """Relative departure (value − ref)/ref; 0 when both are 0 (loads are ≥ 0)."""
+    return 0.0 if value == ref else (value - ref) / ref if ref != 0 else 1.0
+
+
+def terminal_rows(tree, tolerance=DEFAULT_TOLERANCE):
+    """Terminal X, end conditions, the chosen L and which terminals break conditions 2 and 4.
+
+    Returns
+    -------
+    dict
+        ``rows`` (per terminal: ``branch``, ``electrotonic_distance``, ``membrane_area_um2``,
+        ``departure`` = X/L − 1, ``x_ok``, ``end``, ``end_ok``, ``ok``), ``L`` (area-weighted mean, or the
+        largest X for infinite ends), ``x_min``, ``x_max``, ``end``, ``like_ends``,
+        ``equal_x_required``, ``load`` (normalised G, C of the cylinder's end or None).
+    """
+    geo = _terminal_geometry(tree)
+    xs = [x for _, _, x, _ in geo]
+    areas = [a for _, _, _, a in geo]
+    common, like = _common_end(tree, geo)
+    infinite = common == "infinite"
+    length = max(xs) if infinite else math.fsum(a * x for a, x in zip(areas, xs)) / math.fsum(areas)
+    end_ok = [_end_name(tree, sec) == common for _, sec, _, _ in geo]
+    load = None
+    if common == "load":
+        g, c = _load_scales(tree, geo)
+        sel = [i for i, e in enumerate(end_ok) if e]
+        g_ref, c_ref = (math.fsum(v[i] for i in sel) / len(sel) for v in (g, c))
+        for i in sel:
+            end_ok[i] = _ok(max(abs(_rel(g[i], g_ref)), abs(_rel(c[i], c_ref))), tolerance)
+        load = {"g_per_d32": g_ref, "c_per_d32": c_ref}
+    rows = []
+    for (b, sec, x, area), e_ok in zip(geo, end_ok):
+        dep = x / length - 1.0 if length > 0 else 0.0
+        x_ok = infinite or _ok(dep, tolerance)
+        rows.append({"branch": tree.branch_ids[b], "electrotonic_distance": x, "membrane_area_um2": area,
+                     "departure": dep, "x_ok": bool(x_ok), "end": _end_name(tree, sec),
+                     "end_ok": bool(e_ok), "ok": bool(x_ok and e_ok)})
+    return {"rows": rows, "L": length, "x_min": min(xs), "x_max": max(xs), "end": common,
+            "like_ends": bool(like and all(end_ok)), "equal_x_required": not infinite, "load": load}
+
+
+def _stem_diameters_um(tree):
+    return [float(tree.diameter_um[tree.branch_sections[b][0]])
+            for b in range(len(tree.branch_ids)) if tree.branch_parent[b] < 0]
+
+
+def cylinder_scenario(tree, scenario, terminals):
+    """The equivalent cylinder as a one-branch scenario (same membrane, same soma).
+
+    Parameters
+    ----------
+    tree : Tree
+    scenario : dict
+        The validated scenario (``membrane``, ``soma``).
+    terminals : dict
+        Output of :func:`terminal_rows` (``L``, ``end``, ``load``).
+
+    Returns
+    -------
+    dict
+        ``branches`` (one branch ``"equivalent_cylinder"``), ``membrane``, ``soma``,
+        ``diameter_um``, ``lambda_um``, ``length_um``, ``electrotonic_length``.
+    """
+    from .membrane import space_constant_um
+
+    mem = scenario["membrane"]
+    d_eq = equivalent_diameter_um(_stem_diameters_um(tree))
+    lam = float(space_constant_um(d_eq, mem["Rm"], mem["Ri"]))
+    end = terminals["end"]
+    if end == "load":
+        w = d_eq ** 1.5
+        end = {"G": terminals["load"]["g_per_d32"] * w * 1e3, "C": terminals["load"]["c_per_d32"] * w * 1e3}
+    length_um = terminals["L"] * lam
+    branch = {"id": "equivalent_cylinder", "parent": None, "length": length_um, "diameter": d_eq, "end": end}
+    return {"branches": [branch], "membrane": mem, "soma": scenario.get("soma"), "diameter_um": d_eq,
+            "lambda_um": lam, "length_um": length_um, "electrotonic_length": terminals["L"]}
+
+
+def compare_logs(tree, cyl_tree, sec, y_um, s):
+    """Complex logs at one site of the full tree and at the same X on the cylinder.
+
+    Parameters
+    ----------
+    tree, cyl_tree : Tree
+        The full tree and the one-branch cylinder (from :func:`cylinder_scenario`).
+    sec, y_um : int, float
+        The site: section of ``tree`` and distance (µm) from its proximal end.
+    s : array_like
+        Laplace variables (1/ms).
+
+    Returns
+    -------
+    dict of (F,) complex arrays (None for the cylinder when X lies beyond its end)
+        ``tree_down``/``cyl_down`` = ln A soma→site; ``tree_ln_z_soma``/``cyl_ln_z_soma`` and
+        ``tree_ln_z_transfer``/``cyl_ln_z_transfer`` (ln MΩ); ``tree_up`` = ln A site→soma and
+        ``tree_ln_z_site`` (full tree only: the cylinder does not give them).
+    """
+    s = np.atleast_1d(np.asarray(s))
+    sol = solve_tree(tree, s)
+    t = point_terms(sol, [sec], [y_um])
+    ln_y_site = np.log(t["y_node"][0])
+    out = {"tree_down": t["down"][0], "tree_up": t["up"][0], "tree_ln_z_site": -ln_y_site,
+           "tree_ln_z_soma": -np.log(sol.y_root), "tree_ln_z_transfer": t["up"][0] - ln_y_site}
+    x_site = float(tree.x_start[sec] + y_um / tree.lambda_um[sec])
+    y_cyl = x_site * float(cyl_tree.lambda_um[0])
+    if y_cyl > float(cyl_tree.length_um[0]) * (1 + _BEYOND):
+        return {**out, "cyl_down": None, "cyl_ln_z_soma": -np.log(solve_tree(cyl_tree, s).y_root),
+                "cyl_ln_z_transfer": None}
+    csol = solve_tree(cyl_tree, s)
+    c = point_terms(csol, [0], [min(y_cyl, float(cyl_tree.length_um[0]))])
+    ln_z_soma = -np.log(csol.y_root)
+    return {**out, "cyl_down": c["down"][0], "cyl_ln_z_soma": ln_z_soma,
+            "cyl_ln_z_transfer": c["down"][0] + ln_z_soma}
+
+
+def _num(x):
+    if x is None:
+        return None
+    x = float(np.real(x))
+    return x if math.isfinite(x) else None
+
+
+def _pair(ln_tree, ln_cyl):
+    """Tree value, cylinder value and (cyl − tree)/tree = expm1(ln cyl − ln tree), from logs."""
+    tree_v = _num(np.exp(np.real(ln_tree)))
+    if ln_cyl is None:
+        return {"tree": tree_v, "cylinder": None, "relative_error": None}
+    cyl_v = _num(np.exp(np.real(ln_cyl)))
+    with np.errstate(invalid="ignore"):
+        err = _num(np.expm1(np.real(ln_cyl) - np.real(ln_tree)))
+    return {"tree": tree_v, "cylinder": cyl_v, "relative_error": err}
+
+
+NOT_GIVEN = ("A point on the equivalent cylinder stands for input spread over every branch at the same "
+             "electrotonic distance, so the cylinder does not give the synapse's own input resistance or "
+             "its site→soma attenuation; the values here are the full tree's.")
+
+
+def _comparison(tree, cyl_tree, sec, y_um):
+    logs = {k: (v[0] if v is not None else None) for k, v in compare_logs(tree, cyl_tree, sec, y_um, [0.0]).items()}
+    x_site = float(tree.x_start[sec] + y_um / tree.lambda_um[sec])
+    beyond = logs["cyl_down"] is None
+    return {
+        "electrotonic_distance": x_site,
+        "site_beyond_cylinder": beyond,
+        "soma_to_site": _pair(logs["tree_down"], logs["cyl_down"]),
+        "transfer_resistance_Mohm": _pair(logs["tree_ln_z_transfer"], logs["cyl_ln_z_transfer"]),
+        "soma_input_resistance_Mohm": _pair(logs["tree_ln_z_soma"], logs["cyl_ln_z_soma"]),
+        "not_given_by_cylinder": {"site_to_soma": _num(np.exp(logs["tree_up"])),
+                                  "site_input_resistance_Mohm": _num(np.exp(logs["tree_ln_z_site"])),
+                                  "note": NOT_GIVEN},
+        "note": ("The synapse lies beyond the cylinder's end (its X exceeds the cylinder's L), so the "
+                 "cylinder has no point to compare with." if beyond else
+                 "Cylinder values are at the synapse's electrotonic distance X; relative_error = "
+                 "(cylinder − tree)/tree, at 0 Hz."),
+    }
+
+
+LENGTH_RULE = ("L is the membrane-area-weighted mean of the terminal electrotonic distances (each terminal "
+               "weighted by the membrane area of its terminal branch); with infinite ends, the largest terminal X.")
+TAPER_RULE = ("A diameter step between sections of one branch is checked as a branch point with one child "
+              "(d_prev^3/2 = d_next^3/2), so a stepwise taper breaks the reduction unless its steps are "
+              "within the tolerance.")
+
+
+def _messages(points, joins, terms, tolerance):
+    pct = f"{100 * tolerance:g} %"
+    out = [f"branch point at the end of {r['parent']!r}: d^3/2 ratio {r['ratio']:.4g} (departure "
+           f"{100 * r['departure']:+.2f} %) exceeds the tolerance {pct}" for r in points if not r["ok"]]
+    out += [f"diameter step in {r['branch']!r} before section {r['section']}: {r['diameter_before_um']:g} → "
+            f"{r['diameter_after_um']:g} µm (departure {100 * r['departure']:+.2f} %) exceeds {pct}"
+            for r in joins if not r["ok"]]
+    for r in terms["rows"]:
+        if not r["end_ok"]:
+            out.append(f"terminal {r['branch']!r}: end {r['end']!r} differs from the others' "
+                       f"({terms['end']!r}), or its load does not scale with d^3/2 within {pct}")
+        if not r["x_ok"]:
+            out.append(f"terminal {r['branch']!r}: X = {r['electrotonic_distance']:.4g} departs "
+                       f"{100 * r['departure']:+.2f} % from L = {terms['L']:.4g} (tolerance {pct})")
+    return out
+
+
+def _conditions(points, joins, terms):
+    return {"three_halves_rule_at_branch_points": all(r["ok"] for r in points),
+            "three_halves_rule_at_section_joins": all(r["ok"] for r in joins),
+            "equal_terminal_electrotonic_distance": all(r["x_ok"] for r in terms["rows"]),
+            "equal_terminal_electrotonic_distance_required": terms["equal_x_required"],
+            "uniform_membrane": True,
+            "like_ends": terms["like_ends"]}
+
+
+def equivalent_cylinder(tree, scenario, sec, y_um):
+    """The ``equivalent_cylinder`` block of the report (keys in DEVELOPERS.md).
+
+    Parameters
+    ----------
+    tree : Tree
+        The full tree, from :func:`~somaward.tree.build_tree`.
+    scenario : dict
+        The validated scenario; ``equivalent_cylinder.tolerance`` (default 0.05) is read from it.
+    sec, y_um : int, float
+        The synapse: section of ``tree`` and distance (µm) from the section's proximal end.
+    """
+    tol = float(scenario.get("equivalent_cylinder", {}).get("tolerance", DEFAULT_TOLERANCE))
+    points, joins = branch_point_rows(tree, tol), section_join_rows(tree, tol)
+    terms = terminal_rows(tree, tol)
+    cyl = cylinder_scenario(tree, scenario, terms)
+    cyl_tree = build_tree(cyl["branches"], cyl["membrane"], cyl["soma"])
+    cond = _conditions(points, joins, terms)
+    deps = [abs(r["departure"]) for r in points + joins]
+    spread = terms["x_max"] - terms["x_min"]
+    return {
+        "tolerance": tol,
+        "meets_conditions": all(v for k, v in cond.items() if k != "equal_terminal_electrotonic_distance_required"),
+        "conditions": cond,
+        "breaks": {"branch_points": [r["parent"] for r in points if not r["ok"]],
+                   "section_joins": sorted({r["branch"] for r in joins if not r["ok"]}),
+                   "terminals": [r["branch"] for r in terms["rows"] if not r["ok"]]},
+        "messages": _messages(points, joins, terms, tol),
+        "branch_points": points, "section_joins": joins, "terminals": terms["rows"],
+        "max_rule_departure": max(deps) if deps else 0.0,
+        "terminal_electrotonic_distance_min": terms["x_min"],
+        "terminal_electrotonic_distance_max": terms["x_max"],
+        "terminal_electrotonic_distance_spread": spread,
+        "terminal_electrotonic_distance_relative_spread": spread / terms["L"] if terms["L"] > 0 else 0.0,
+        "end_condition": terms["end"] if terms["like_ends"] else "mixed",
+        "cylinder": {"diameter_um": cyl["diameter_um"], "electrotonic_length": cyl["electrotonic_length"],
+                     "electrotonic_length_min": terms["x_min"], "electrotonic_length_max": terms["x_max"],
+                     "lambda_um": cyl["lambda_um"], "length_um": cyl["length_um"],
+                     "end": cyl["branches"][0]["end"], "stems": [tree.branch_ids[b] for b in
+                                                                 range(len(tree.branch_ids)) if tree.branch_parent[b] < 0],
+                     "length_rule": LENGTH_RULE, "taper_rule": TAPER_RULE},
+        "comparison": _comparison(tree, cyl_tree, sec, y_um),
+    }
+
+
+def rule_table_rows(report):
+    """The 3/2-rule table for exports: one row per branch point, then one per diameter step.
+
+    Returns
+    -------
+    header : list of str
+    rows : list of list
+        ``[parent id, children ids (comma-separated str), ratio (float), departure (float),
+        ok (bool)]``; a diameter step inside a branch is a row whose parent is
+        ``"<branch> section <j-1>"`` and child ``"<branch> section <j>"``. Numbers are left
+        unformatted for the caller.
+    """
+    eq = report["equivalent_cylinder"]
+    header = ["parent", "children", "ratio d_parent^3/2 / sum d_child^3/2", "departure", "ok"]
+    rows = [[r["parent"], ", ".join(r["children"]), r["ratio"], r["departure"], r["ok"]]
+            for r in eq["branch_points"]]
+    rows += [[f"{r['branch']} section {r['section'] - 1}", f"{r['branch']} section {r['section']}",
+              r["ratio"], r["departure"], r["ok"]] for r in eq["section_joins"]]
+    return header, rows
+
+
+def _g(x):
+    return "n/a" if x is None else f"{x:.4g}"
+
+
+def _pct(x):
+    return "n/a" if x is None else f"{100 * x:+.2g} %"
+
+
+def methods_sentence(report):
+    """One sentence for a methods paragraph describing the reduction and its error (own words)."""
+    eq = report["equivalent_cylinder"]
+    cyl, cmp_ = eq["cylinder"], eq["comparison"]
+    n = len(eq["branch_points"])
+    ratios = [r["ratio"] for r in eq["branch_points"]]
+    span = f"{min(ratios):.3g}–{max(ratios):.3g}" if ratios else "not applicable (no branch points)"
+    verdict = "met" if eq["meets_conditions"] else "did not meet"
+    return (f"The tree was tested against the conditions for reduction to an equivalent cylinder "
+            f"(Rall 1962; Rall 1964): the ratio d_parent^3/2/Σd_child^3/2 at its {n} branch point(s) was "
+            f"{span}, terminal electrotonic distances ranged from {eq['terminal_electrotonic_distance_min']:.3g} "
+            f"to {eq['terminal_electrotonic_distance_max']:.3g}, and the tree {verdict} the conditions within a "
+            f"relative tolerance of {100 * eq['tolerance']:g} %; the cylinder (diameter "
+            f"{cyl['diameter_um']:.3g} µm, L = {cyl['electrotonic_length']:.3g}) misestimated the steady-state "
+            f"soma input resistance by {_pct(cmp_['soma_input_resistance_Mohm']['relative_error'])} and "
+            f"{_at_site(cmp_)}, while the synapse's own input resistance and its synapse→soma attenuation "
+            f"were taken from the full tree.")
+
+
+def _at_site(cmp_):
+    x = cmp_["electrotonic_distance"]
+    err = cmp_["soma_to_site"]["relative_error"]
+    if err is None:
+        return f"had no point at the synapse's X = {x:.3g}, which lies beyond its end"
+    return f"the soma→synapse attenuation at X = {x:.3g} by {_pct(err)}"
+
+
+def summary_lines(report):
+    """Plain-text lines for the CLI: verdict, cylinder, comparison and each broken condition."""
+    eq = report["equivalent_cylinder"]
+    cyl, cmp_ = eq["cylinder"], eq["comparison"]
+    lines = [f"equivalent cylinder: conditions {'met' if eq['meets_conditions'] else 'NOT met'} "
+             f"(tolerance {100 * eq['tolerance']:g} %)",
+             f"  d_eq = {cyl['diameter_um']:.4g} µm, L = {cyl['electrotonic_length']:.4g} "
+             f"(terminal X {cyl['electrotonic_length_min']:.4g}–{cyl['electrotonic_length_max']:.4g}), "
+             f"length {cyl['length_um']:.4g} µm, end {cyl['end']}"]
+    for key, label in (("soma_to_site", "soma→site attenuation"),
+                       ("transfer_resistance_Mohm", "transfer resistance (MΩ)"),
+                       ("soma_input_resistance_Mohm", "soma input resistance (MΩ)")):
+        v = cmp_[key]
+        lines.append(f"  {label}: tree {_g(v['tree'])}, cylinder {_g(v['cylinder'])}, "
+                     f"error {_pct(v['relative_error'])}")
+    ng = cmp_["not_given_by_cylinder"]
+    lines.append(f"  not given by the cylinder (full tree): site input resistance "
+                 f"{_g(ng['site_input_resistance_Mohm'])} MΩ, site→soma attenuation {_g(ng['site_to_soma'])}")
+    return lines + [f"  ✗ {m}" for m in eq["messages"]]
