@@ -87,17 +87,25 @@ def _join(path, key):
 class _Checker:
     def __init__(self, schema):
         self.root = schema
+        self._resolved = {}
 
     def resolve(self, node):
-        while "$ref" in node:
-            ref = node["$ref"]
+        """The node with its local ``$ref`` followed (cached: the schema does not change)."""
+        key = id(node)
+        hit = self._resolved.get(key)
+        if hit is not None:
+            return hit[1]
+        out = node
+        while "$ref" in out:
+            ref = out["$ref"]
             if not ref.startswith("#/"):
                 raise KeyError(ref)
             target = self.root
             for part in ref[2:].split("/"):
                 target = target[part]
-            node = {**target, **{k: v for k, v in node.items() if k != "$ref"}}
-        return node
+            out = {**target, **{k: v for k, v in out.items() if k != "$ref"}}
+        self._resolved[key] = (node, out)         # keep node alive so its id stays unique
+        return out
 
     def check(self, value, node, path):
         """Return ``value`` with defaults filled in, or raise ScenarioError."""
