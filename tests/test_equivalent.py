@@ -27,7 +27,7 @@ from mpmath import mp
 
 import somaward
 from somaward import ScenarioError, solve, validate
-from somaward.equivalent import (compare_logs, cylinder_scenario, equivalent_diameter_um, methods_sentence,
+from somaward.equivalent import (compare_logs, comparison_rows, cylinder_scenario, equivalent_diameter_um, methods_sentence,
                                  rule_table_rows, terminal_rows)
 from somaward.schema_check import load_schema
 from somaward.tree import build_tree
@@ -433,7 +433,10 @@ def test_rule_table_and_methods_sentence():
     header, rows = rule_table_rows(r)
     assert len(header) == 5 and len(rows) == 2
     assert rows[0][:2] == ["trunk", "a, b"] and rows[0][2] == r["equivalent_cylinder"]["branch_points"][0]["ratio"]
-    assert rows[1][4] is False and rows[1][2] == pytest.approx(1.5 ** 1.5, rel=1e-12)
+    assert rows[0][4] == "yes" and rows[1][4] == "no" and rows[1][2] == pytest.approx(1.5 ** 1.5, rel=1e-12)
+    table = dict((q, v) for q, v, _ in comparison_rows(r))
+    cmp_ = r["equivalent_cylinder"]["comparison"]
+    assert table["Soma input resistance, equivalent cylinder"] == cmp_["soma_input_resistance_Mohm"]["cylinder"]
     text = methods_sentence(r)
     assert text.count(". ") == 0 and text.endswith(".") and "did not meet" in text and "5 %" in text
     assert "Rall 1962" in text

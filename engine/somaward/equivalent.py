@@ -68,7 +68,8 @@ from .tree import END_CODES, build_tree, solve_tree
 
 __all__ = ["DEFAULT_TOLERANCE", "rule_ratio", "equivalent_diameter_um", "branch_point_rows",
            "section_join_rows", "terminal_rows", "cylinder_scenario", "compare_logs",
-           "equivalent_cylinder", "rule_table_rows", "methods_sentence", "summary_lines"]
+           "equivalent_cylinder", "rule_table_rows", "comparison_rows", "methods_sentence",
+           "summary_lines"]
 
 DEFAULT_TOLERANCE = 0.05
 _END_NAMES = {v: k for k, v in END_CODES.items()}
@@ -435,17 +436,40 @@ def rule_table_rows(report):
     header : list of str
     rows : list of list
         ``[parent id, children ids (comma-separated str), ratio (float), departure (float),
-        ok (bool)]``; a diameter step inside a branch is a row whose parent is
+        "yes" | "no"]``; a diameter step inside a branch is a row whose parent is
         ``"<branch> section <j-1>"`` and child ``"<branch> section <j>"``. Numbers are left
         unformatted for the caller.
     """
     eq = report["equivalent_cylinder"]
     header = ["parent", "children", "ratio d_parent^3/2 / sum d_child^3/2", "departure", "ok"]
-    rows = [[r["parent"], ", ".join(r["children"]), r["ratio"], r["departure"], r["ok"]]
+    yes = {True: "yes", False: "no"}
+    rows = [[r["parent"], ", ".join(r["children"]), r["ratio"], r["departure"], yes[r["ok"]]]
             for r in eq["branch_points"]]
     rows += [[f"{r['branch']} section {r['section'] - 1}", f"{r['branch']} section {r['section']}",
-              r["ratio"], r["departure"], r["ok"]] for r in eq["section_joins"]]
+              r["ratio"], r["departure"], yes[r["ok"]]] for r in eq["section_joins"]]
     return header, rows
+
+
+def comparison_rows(report):
+    """(quantity, value, unit) rows for a results table, in the style of ``export.results_rows``.
+
+    Values are numbers (None where not defined) or short strings; relative errors are in %.
+    """
+    eq = report["equivalent_cylinder"]
+    cyl, cmp_ = eq["cylinder"], eq["comparison"]
+    pct = lambda v: None if v is None else 100.0 * v  # noqa: E731
+    rows = [("Equivalent cylinder: conditions met (tolerance %g %%)" % (100 * eq["tolerance"]),
+             "yes" if eq["meets_conditions"] else "no", ""),
+            ("Equivalent cylinder diameter d_eq", cyl["diameter_um"], "µm"),
+            ("Equivalent cylinder electrotonic length L", cyl["electrotonic_length"], ""),
+            ("  terminal X, min", cyl["electrotonic_length_min"], ""),
+            ("  terminal X, max", cyl["electrotonic_length_max"], "")]
+    for key, label, unit in (("soma_input_resistance_Mohm", "Soma input resistance", "MΩ"),
+                             ("transfer_resistance_Mohm", "Transfer resistance synapse–soma", "MΩ"),
+                             ("soma_to_site", "Attenuation soma→synapse (V_syn/V_soma)", "")):
+        rows += [(f"{label}, equivalent cylinder", cmp_[key]["cylinder"], unit),
+                 ("  relative error of the cylinder", pct(cmp_[key]["relative_error"]), "%")]
+    return rows
 
 
 def _g(x):
