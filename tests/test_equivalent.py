@@ -100,9 +100,10 @@ def _x_along(branch, dist_um):
     return x
 
 
-def _cylinder_closed_form(freq_hz, d_eq, L, x, soma):
+def _cylinder_closed_form(freq_hz, d_eq, L, x, soma, end="sealed"):
     """S9 (Rall 1959; Rall 1969): soma + sealed cylinder. Y_in = G_s(1+sτ) + k·tanh(kL)/R∞,
-    k = √(1+sτ); soma→site A = cosh(k(L−X))/cosh(kL) (S2, Rall 1977); Z_transfer = A/Y_in."""
+    k = √(1+sτ); soma→site A = cosh(k(L−X))/cosh(kL) (S2, Rall 1977); Z_transfer = A/Y_in.
+    Killed end (S3, Rall 1977): coth for tanh and sinh for cosh."""
     with mp.workdps(30):
         tau = mp.mpf(MEM["Rm"]) * mp.mpf(MEM["Cm"]) / 1000
         s = mp.mpc(0, 2 * mp.pi * mp.mpf(freq_hz) / 1000)
@@ -110,8 +111,12 @@ def _cylinder_closed_form(freq_hz, d_eq, L, x, soma):
         d = mp.mpf(d_eq)
         r_inf = (2 / mp.pi) * mp.sqrt(mp.mpf(MEM["Rm"]) * mp.mpf(MEM["Ri"])) * (d * 1e-4) ** mp.mpf(-1.5) * 1e-6
         g_s = 0 if soma is None else mp.pi * mp.mpf(soma["diameter"]) ** 2 / mp.mpf(MEM["Rm"]) * mp.mpf("0.01")
-        y_in = g_s * (1 + s * tau) + k * mp.tanh(k * L) / r_inf
-        a = mp.cosh(k * (L - x)) / mp.cosh(k * L)
+        if end == "killed":
+            y_in = g_s * (1 + s * tau) + k * mp.coth(k * L) / r_inf
+            a = mp.sinh(k * (L - x)) / mp.sinh(k * L)
+        else:
+            y_in = g_s * (1 + s * tau) + k * mp.tanh(k * L) / r_inf
+            a = mp.cosh(k * (L - x)) / mp.cosh(k * L)
         return complex(1 / y_in), complex(a), complex(a / y_in)
 
 
@@ -147,6 +152,25 @@ def test_S5_ideal_tree_equals_cylinder_closed_form(symmetric, with_soma):
         assert _rel(_complex(fr["transfer_impedance_Mohm"], i), z_tr) < 1e-9
     for key in ("soma_to_site", "transfer_resistance_Mohm", "soma_input_resistance_Mohm"):
         assert abs(eq["comparison"][key]["relative_error"]) < 1e-9
+
+
+def test_S5_all_killed_ends():
+    """S5 with like killed ends (Rall 1962; 1964) against S3/S9 closed forms (Rall 1977; Rall
+    1959): the same invented 3/2-rule tree with every terminal killed matches a killed cylinder
+    of d_eq and L in soma input impedance, soma→site attenuation and transfer impedance (1e-9)."""
+    sc = _ideal_tree(False, True, seed=5)
+    for b in sc["branches"]:
+        if b["id"].count(".") == 3:
+            b["end"] = "killed"
+    r = solve(sc)
+    eq = r["equivalent_cylinder"]
+    assert eq["meets_conditions"] and eq["end_condition"] == "killed" and eq["cylinder"]["end"] == "killed"
+    d_eq, x, fr = (3.0 ** 1.5 + 2.0 ** 1.5) ** (2 / 3), _x_of_site(sc), r["frequency_response"]
+    for i, f in enumerate(FREQS_HZ):
+        z_soma, a, z_tr = _cylinder_closed_form(f, d_eq, L_TARGET, x, SOMA, "killed")
+        assert _rel(_complex(fr["soma_input_impedance_Mohm"], i), z_soma) < 1e-9
+        assert _rel(_complex(fr["soma_to_site"], i), a) < 1e-9
+        assert _rel(_complex(fr["transfer_impedance_Mohm"], i), z_tr) < 1e-9
 
 
 @pytest.mark.parametrize("with_soma", [True, False], ids=["soma", "no_soma"])
