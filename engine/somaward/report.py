@@ -11,7 +11,7 @@ import numpy as np
 
 from . import __version__
 from .equivalent import equivalent_cylinder
-from .frequency import centroid_delays_ms, laplace_of_hz, site_response
+from .frequency import centroid_delays_ms, complex_step_ms, laplace_of_hz, site_response
 from .maps import map_points, path_points, tree_map_logs
 from .sanity import geometry_warnings, membrane_warnings
 from .scenario import locate_synapse, validate
@@ -130,8 +130,12 @@ def _steady_state(tree, sec, y, warnings):
     return sol, ss, values
 
 
-def _frequency(tree, sec, y, freqs, centroid, warnings):
-    r = site_response(tree, sec, y, laplace_of_hz(freqs))
+def _frequency(tree, sec, y, freqs, warnings):
+    """Frequency response at the site, and the centroid delays from one extra complex step."""
+    s = np.concatenate([laplace_of_hz(freqs), [1j * complex_step_ms(tree)]])
+    both = site_response(tree, sec, y, s)
+    centroid = centroid_delays_ms(tree, sec, y, {k: v[-1:] for k, v in both.items()})
+    r = {k: v[:-1] for k, v in both.items()}
     out = {"frequencies_hz": [float(f) for f in freqs],
            "site_to_soma": _direction(r["up"], freqs, centroid[0]),
            "soma_to_site": _direction(r["down"], freqs, centroid[1]),
@@ -144,13 +148,13 @@ def _frequency(tree, sec, y, freqs, centroid, warnings):
             warnings.append(f"frequency response {key.replace('_', ' ')}: |A| underflows double precision at "
                             f"{len(zero)} frequencies from {min(zero):g} Hz and is reported as 0 there; "
                             "log attenuation and phase stay exact.")
-    return out
+    return out, centroid
 
 
-def _tree_map(tree, scenario):
+def _tree_map(tree, scenario, sol_dc):
     sec, y = map_points(tree, scenario["map_spacing_um"])
     f = scenario["map_frequency_hz"]
-    sol = solve_tree(tree, np.array([0.0]) if f == 0 else laplace_of_hz([f]))
+    sol = sol_dc if f == 0 else solve_tree(tree, laplace_of_hz([f]))
     up, down = tree_map_logs(sol, sec, y)
     x = tree.x_start[sec] + y / tree.lambda_um[sec]
     return {"frequency_hz": float(f),
@@ -199,7 +203,7 @@ def solve(scenario):
     b, dist = locate_synapse(sc["synapse"], sc["branches"], index)
     sec, y = _site_section(tree, b, dist)
     sol_dc, steady, values = _steady_state(tree, sec, y, warnings)
-    centroid = centroid_delays_ms(tree, sec, y)
+    frequency, centroid = _frequency(tree, sec, y, sc["frequencies_hz"], warnings)
     lam, elec, secs, term_x = _branch_tables(tree, sc["branches"])
     x_site = float(tree.x_start[sec] + y / tree.lambda_um[sec])
     report = {
@@ -214,11 +218,11 @@ def solve(scenario):
                  "path_distance_um": float(tree.path_start_um[sec] + y), "electrotonic_distance": x_site},
         "soma": _soma_block(tree, sc),
         "attenuation": {"steady_state": steady},
-        "frequency_response": _frequency(tree, sec, y, sc["frequencies_hz"], centroid, warnings),
+        "frequency_response": frequency,
         "centroid_delay_ms": _num(centroid[0]),
         "centroid_delay_soma_to_site_ms": _num(centroid[1]),
         "path_profile": _path_profile(tree, sol_dc, sec, y, sc["map_spacing_um"]),
-        "tree_map": _tree_map(tree, sc),
+        "tree_map": _tree_map(tree, sc, sol_dc),
         "equivalent_cylinder": equivalent_cylinder(tree, sc, sec, y),
     }
     report["warnings"] = warnings
