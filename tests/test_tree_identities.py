@@ -409,8 +409,6 @@ def test_centroid_delay_capacitive_load_closed_form(g_nS):
     assert r["centroid_delay_soma_to_site_ms"] == pytest.approx(ref, rel=1e-8)
 
 
-@pytest.mark.xfail(strict=True, reason="engine bug: frequency._slowest_load_ms divides C by a subnormal G, "
-                   "overflows to inf, the complex step h becomes 0 and both centroid delays are reported null")
 def test_centroid_delay_subnormal_load_conductance():
     """A legal load {"G": 1e-310 nS, "C": 5 pF} (schema: G ≥ 0) must give the G → 0 value of the
     closed form (derived: the load G + sC is continuous in G), not null."""

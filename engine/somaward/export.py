@@ -11,7 +11,9 @@ import hashlib
 import io
 import json
 
-__all__ = ["fingerprint", "results_rows", "format_value", "table", "methods_text", "render",
+from .equivalent import comparison_rows, methods_sentence, rule_table_rows
+
+__all__ = ["fingerprint", "results_rows", "format_value", "table", "rule_table", "methods_text", "render",
            "latex_escape", "FORMATS"]
 
 FORMATS = ("json", "md", "tsv", "csv", "latex")
@@ -61,6 +63,7 @@ def results_rows(report):
     if report["rho"] is not None:
         rows += [("Dendritic-to-somatic conductance ratio ρ", report["rho"], ""),
                  ("ρ∞ (stems as semi-infinite cylinders)", report["rho_inf"], "")]
+    rows += comparison_rows(report)
     for bid, lam in report["lambda_um"].items():
         value = lam if not isinstance(lam, list) else f"{format_value(min(lam))}–{format_value(max(lam))}"
         rows.append((f"λ of branch {bid}", value, "µm"))
@@ -76,13 +79,10 @@ def _display_rows(report):
     return [(q, format_value(v), u) for q, v, u in results_rows(report)]
 
 
-def table(report, fmt):
-    """The results table as ``md``, ``tsv``, ``csv`` or ``latex`` text, with its stamp."""
-    rows = _display_rows(report)
-    header = ("Quantity", "Value", "Unit")
-    stamp = _stamp(report)
+def _render_table(header, rows, fmt, stamp):
+    """One table (header + rows of display strings) as md, tsv, csv or latex, with its stamp."""
     if fmt == "md":
-        lines = ["| " + " | ".join(header) + " |", "|---|---:|---|"]
+        lines = ["| " + " | ".join(header) + " |", "|" + "|".join(["---"] + ["---:"] * (len(header) - 1)) + "|"]
         lines += ["| " + " | ".join(_md_cell(c) for c in r) + " |" for r in rows]
         return "\n".join(lines) + f"\n\n*{stamp}; passive-cable estimate.*\n"
     if fmt in ("tsv", "csv"):
@@ -90,13 +90,27 @@ def table(report, fmt):
         writer = csv.writer(buf, delimiter="\t" if fmt == "tsv" else ",", lineterminator="\n")
         writer.writerow(header)
         writer.writerows(rows)
-        writer.writerow([stamp, "", ""])
+        writer.writerow([stamp] + [""] * (len(header) - 1))
         return buf.getvalue()
     if fmt == "latex":
+        cols = "l" + "r" * (len(header) - 2) + "l" if len(header) > 2 else "l" * len(header)
+        head = " & ".join(latex_escape(h) for h in header) + r" \\"
         body = "\n".join(" & ".join(latex_escape(c) for c in r) + r" \\" for r in rows)
-        return ("\\begin{tabular}{lrl}\n\\toprule\nQuantity & Value & Unit \\\\\n\\midrule\n"
+        return (f"\\begin{{tabular}}{{{cols}}}\n\\toprule\n{head}\n\\midrule\n"
                 f"{body}\n\\bottomrule\n\\end{{tabular}}\n% {latex_escape(stamp)}; needs \\usepackage{{booktabs}}\n")
     raise ValueError(f"format: must be one of {', '.join(FORMATS[1:])}, got {fmt!r}")
+
+
+def table(report, fmt):
+    """The results table as ``md``, ``tsv``, ``csv`` or ``latex`` text, with its stamp."""
+    return _render_table(("Quantity", "Value", "Unit"), _display_rows(report), fmt, _stamp(report))
+
+
+def rule_table(report, fmt):
+    """The 3/2-rule table, one row per branch point and diameter step (Rall 1962), with its stamp."""
+    header, rows = rule_table_rows(report)
+    shown = [[format_value(c) if not isinstance(c, str) else c for c in r] for r in rows]
+    return _render_table(tuple(header), shown, fmt, _stamp(report))
 
 
 def _md_cell(text):
@@ -169,12 +183,15 @@ def methods_text(report):
         f"{sc['map_frequency_hz']:g} Hz{_defaulted(report, 'map_frequency_hz')}. "
         f"The synaptic current was {_current_words(cur)}{_defaulted(report, 'synapse.current')}. "
         "These are passive-cable estimates, not measurements: active conductances, spines and "
-        "cell-to-cell variability change real attenuation."
+        "cell-to-cell variability change real attenuation. "
+        + methods_sentence(report)
     )
     refs = [
         "Agmon-Snir H, Segev I (1993) Signal delay and input synchronization in passive dendritic structures. J Neurophysiol 70:2066–2085.",
         "Hodgkin AL, Rushton WAH (1946) The electrical constants of a crustacean nerve fibre. Proc R Soc Lond B 133:444–479.",
         "Rall W (1959) Branching dendritic trees and motoneuron membrane resistivity. Exp Neurol 1:491–527.",
+        "Rall W (1962) Theory of physiological properties of dendrites. Ann NY Acad Sci 96:1071–1092.",
+        "Rall W (1964) Theoretical significance of dendritic trees for neuronal input-output relations. In: Reiss RF (ed) Neural Theory and Modeling. Stanford University Press, pp 73–97.",
         "Rall W (1977) Core conductor theory and cable properties of neurons. In: Handbook of Physiology, sec. 1, vol. 1, pp 39–97.",
         "Rall W, Rinzel J (1973) Branch input resistance and steady attenuation for input to one branch of a dendritic neuron model. Biophys J 13:648–688.",
     ]
@@ -191,12 +208,14 @@ def _current_words(cur):
 
 
 def render(report, fmt="json"):
-    """The whole report in one format: JSON, or the table (+ methods paragraph for md)."""
+    """The whole report in one format: JSON, or the tables (+ warnings and methods for md)."""
     if fmt == "json":
         return json.dumps(report, indent=1, ensure_ascii=False, allow_nan=False) + "\n"
-    text = table(report, fmt)
-    if fmt == "md":
-        warnings = "".join(f"- {w}\n" for w in report["warnings"])
-        text = (f"## Results\n\n{text}\n" + (f"### Warnings\n\n{warnings}\n" if warnings else "")
-                + f"## Methods\n\n{methods_text(report)}")
-    return text
+    results, rule = table(report, fmt), rule_table(report, fmt)
+    if fmt != "md":
+        return results + "\n" + rule
+    warnings = "".join(f"- {w}\n" for w in report["warnings"])
+    return (f"## Results\n\n{results}\n"
+            + (f"### Warnings\n\n{warnings}\n" if warnings else "")
+            + f"### Equivalent cylinder: the 3/2 rule\n\n{rule}\n"
+            + f"## Methods\n\n{methods_text(report)}")

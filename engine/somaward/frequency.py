@@ -67,8 +67,7 @@ def centroid_delays_ms(tree, sec, y_um, response=None):
 
 
 def _slowest_load_ms(tree):
-    g, c = tree.end_g_uS, tree.end_c_nF
-    with np.errstate(divide="ignore", invalid="ignore"):
-        t = np.where(g > 0, c / np.where(g > 0, g, 1.0), 0.0)
+    """Slowest time constant of a lumped load, C/(G + G∞ of its section): finite even for G = 0."""
+    t = tree.end_c_nF / (tree.end_g_uS + tree.g_inf_uS)
     soma_t = tree.soma_c_nF / tree.soma_g_uS if tree.soma_g_uS > 0 else 0.0
     return float(max(t.max(initial=0.0), soma_t))
