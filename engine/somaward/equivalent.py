@@ -64,7 +64,7 @@ from collections import Counter
 import numpy as np
 
 from .sites import point_terms
-from .tree import END_CODES, build_tree, solve_tree
+from .tree import END_CODES, branch_section_indices, build_tree, solve_tree
 
 __all__ = ["DEFAULT_TOLERANCE", "rule_ratio", "equivalent_diameter_um", "branch_point_rows",
            "section_join_rows", "terminal_rows", "cylinder_scenario", "compare_logs",
@@ -90,15 +90,6 @@ def equivalent_diameter_um(stem_diameters_um):
     2.0801
     """
     return math.fsum(float(d) ** 1.5 for d in stem_diameters_um) ** (2.0 / 3.0)
-
-
-def _sections_of_branch(tree, b):
-    """Section indices of branch ``b`` from proximal to distal."""
-    first, last = tree.branch_sections[b]
-    chain = [last]
-    while chain[-1] != first:
-        chain.append(int(tree.parent[chain[-1]]))
-    return chain[::-1]
 
 
 def _children(tree):
@@ -147,7 +138,7 @@ def section_join_rows(tree, tolerance=DEFAULT_TOLERANCE):
     """
     rows = []
     for b, bid in enumerate(tree.branch_ids):
-        idx = _sections_of_branch(tree, b)
+        idx = branch_section_indices(tree, b)
         for j in range(1, len(idx)):
             d0, d1 = float(tree.diameter_um[idx[j - 1]]), float(tree.diameter_um[idx[j]])
             ratio = rule_ratio(d0, [d1])
@@ -160,7 +151,7 @@ def _terminal_geometry(tree):
     """(branch index, distal section, terminal X, membrane area µm²) of each terminal branch."""
     out = []
     for b in np.flatnonzero(tree.terminal_branch):
-        idx = _sections_of_branch(tree, int(b))
+        idx = branch_section_indices(tree, int(b))
         last = idx[-1]
         x_end = float(tree.x_start[last] + tree.electrotonic_length[last])
         area = math.fsum(math.pi * tree.diameter_um[i] * tree.length_um[i] for i in idx)

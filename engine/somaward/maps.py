@@ -13,6 +13,7 @@ import math
 import numpy as np
 
 from .sites import point_terms
+from .tree import path_to
 
 __all__ = ["map_points", "tree_map_logs", "path_points"]
 
@@ -49,12 +50,7 @@ def tree_map_logs(sol, sec, y_um):
 
 def path_points(tree, sec, y_um, spacing_um):
     """Points from the recording site to (sec, y) along the path, ≤ spacing apart."""
-    chain = []
-    s = int(sec)
-    while s >= 0:
-        chain.append(s)
-        s = int(tree.parent[s])
-    chain.reverse()
+    chain = path_to(tree, sec)
     out_sec, out_y = [chain[0]], [0.0]
     for s in chain:
         end = float(y_um) if s == int(sec) else float(tree.length_um[s])

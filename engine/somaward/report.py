@@ -16,7 +16,7 @@ from .maps import map_points, path_points, tree_map_logs
 from .sanity import geometry_warnings, membrane_warnings
 from .scenario import locate_synapse, validate
 from .sites import point_terms
-from .tree import build_tree, solve_tree
+from .tree import branch_section_indices, build_tree, solve_tree
 
 __all__ = ["solve"]
 
@@ -70,7 +70,7 @@ def _impedance(ln_z):
 def _branch_tables(tree, branches):
     lam, elec, secs, term_x = {}, {}, {}, {}
     for b in range(len(tree.branch_ids)):
-        idx = _branch_section_indices(tree, b)
+        idx = branch_section_indices(tree, b)
         bid = tree.branch_ids[b]
         rows = [{"length_um": float(tree.length_um[i]), "diameter_um": float(tree.diameter_um[i]),
                  "lambda_um": float(tree.lambda_um[i]),
@@ -84,18 +84,9 @@ def _branch_tables(tree, branches):
     return lam, elec, secs, term_x
 
 
-def _branch_section_indices(tree, b):
-    """Section indices of branch b from proximal to distal (they need not be contiguous)."""
-    first, last = tree.branch_sections[b]
-    chain = [last]
-    while chain[-1] != first:
-        chain.append(int(tree.parent[chain[-1]]))
-    return chain[::-1]
-
-
 def _site_section(tree, branch_index, distance_um):
     """(section, y) of a point given by branch and distance from the branch's proximal end."""
-    idx = _branch_section_indices(tree, branch_index)
+    idx = branch_section_indices(tree, branch_index)
     for i in idx:
         if distance_um <= tree.start_um[i] + tree.length_um[i] or i == idx[-1]:
             return i, float(min(max(distance_um - tree.start_um[i], 0.0), tree.length_um[i]))

@@ -16,6 +16,7 @@ A_site→soma / A_soma→site = Z_in,soma / Z_in,site that these satisfy).
 import numpy as np
 
 from . import cable
+from .tree import path_to
 
 __all__ = ["point_terms", "transfer_log"]
 
@@ -55,14 +56,6 @@ def point_terms(sol, sec, y_um):
     return {"down": down, "up": up, "y_node": y_node}
 
 
-def _ancestors(tree, sec):
-    chain = []
-    while sec >= 0:
-        chain.append(int(sec))
-        sec = tree.parent[sec]
-    return chain
-
-
 def transfer_log(sol, a, b):
     """ln Z_ab: voltage at point ``b`` per unit current injected at point ``a`` (MΩ), shape (F,).
 
@@ -75,7 +68,7 @@ def transfer_log(sol, a, b):
     (sa, ya), (sb, yb) = a, b
     terms = point_terms(sol, [sa, sb], [ya, yb])
     up, down, y_node = terms["up"], terms["down"], terms["y_node"]
-    anc_a, anc_b = _ancestors(t, sa), _ancestors(t, sb)
+    anc_a, anc_b = path_to(t, sa)[::-1], path_to(t, sb)
     common = next((s for s in anc_a if s in set(anc_b)), None)
     base = -np.log(y_node[0])
     if common is None:                      # different stems: c is the recording site

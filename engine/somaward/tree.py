@@ -31,7 +31,7 @@ import numpy as np
 from . import cable
 from .membrane import input_resistance_infinite_Mohm, membrane_time_constant_ms, space_constant_um
 
-__all__ = ["Tree", "TreeSolution", "build_tree", "solve_tree", "path_to", "END_CODES"]
+__all__ = ["Tree", "TreeSolution", "build_tree", "solve_tree", "path_to", "branch_section_indices", "END_CODES"]
 
 END_CODES = {"internal": 0, "sealed": 1, "killed": 2, "infinite": 3, "load": 4}
 
@@ -250,6 +250,15 @@ def _up_pass(tree, s, y0, m):
         yin[lo:hi] = cable.through_admittance(y0[lo:hi], g, q, p, m[lo:hi])
         np.add.at(num, parent_row[lo:hi], yin[lo:hi])
     return {"gam": gam, "opg": opg, "omg": omg, "yin": yin, "yload": num}
+
+
+def branch_section_indices(tree, b):
+    """Section indices of branch ``b`` from proximal to distal (not contiguous in level order)."""
+    first, last = tree.branch_sections[b]
+    chain = [last]
+    while chain[-1] != first:
+        chain.append(int(tree.parent[chain[-1]]))
+    return chain[::-1]
 
 
 def path_to(tree, sec):
