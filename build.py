@@ -409,7 +409,8 @@ def main(argv: list[str] | None = None) -> int:
     size = folder_size(out)
     print(f"build: {out} ({len(summary['files']) + 1} files, {size / 1e6:.1f} MB), "
           f"build {summary['build']}")
-    print(f"build: preview with: python build.py --serve   (or: python -m http.server "
+    again = "" if out == (ROOT / "site").resolve() else f" --out {os.path.relpath(out)}"
+    print(f"build: preview with: python build.py --serve{again}   (or: python -m http.server "
           f"--bind 127.0.0.1 --directory {os.path.relpath(out)} 8000)")
     if args.serve:
         server = make_server(out, args.port)

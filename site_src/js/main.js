@@ -1,5 +1,6 @@
 // Somaward's page: boots the worker, keeps the form and the results in step.
-// body[data-state] = loading | ready | error; body[data-results] = none | fresh | stale.
+// body[data-state] = loading | ready | error; body[data-results] = none | fresh | stale;
+// body[data-input] = pending | valid | invalid (the newest request's fate).
 // Timings (performance.now(), ms) are left on body for bench/page.py:
 // data-t-first-result, data-t-input, data-t-sent, data-t-shown.
 import { EngineClient } from "./worker-client.js";
@@ -21,6 +22,7 @@ let client = null;
 let latest = 0;       // sequence number of the newest request
 let timer = null;
 let haveResult = false;
+let backgroundAsked = false;
 let readyText = "";
 
 function setStatus(text) {
@@ -53,22 +55,32 @@ function show(report, json) {
   }
 }
 
+// After the first answer is on screen (a result or an error message).
+function askBackground() {
+  if (backgroundAsked) return;
+  backgroundAsked = true;
+  setTimeout(() => client.loadBackground(), 0);
+}
+
 async function recompute() {
   const mine = ++latest;
   const scenario = scenarioFromValues(readForm(form));
   body.dataset.tSent = performance.now().toFixed(2);
+  body.dataset.input = "pending";
   try {
     const { value, json } = await client.call("solve", scenario);
     if (mine !== latest) return;
     clearMessages(form);
     body.dataset.input = "valid";
     show(value, json);
+    askBackground();
   } catch (err) {
     if (mine !== latest) return;
     if (err.type === "BootError") return;  // the boot error notice says it all
     body.dataset.input = "invalid";
     markStale();
     showMessage(form, err.message);
+    askBackground();
   }
 }
 

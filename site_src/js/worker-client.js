@@ -44,6 +44,11 @@ export class EngineClient {
     });
   }
 
+  // Tell the worker the first answer is on screen: it may now load the rest (scipy).
+  loadBackground() {
+    this.worker.postMessage({ type: "background" });
+  }
+
   terminate() {
     this.worker.terminate();
     for (const waiter of this.pending.values()) {

@@ -1,7 +1,8 @@
 // Somaward's compute worker (a module Web Worker).
 // Loads Pyodide, numpy and the engine once, then answers {id, fn, args} with
 // {id, ok, value | error}; args and value are JSON strings, never proxies.
-// scipy loads in the background only after the first answer, so it never delays it.
+// scipy loads in the background only when the page says its first answer is on screen
+// ({type: "background"}), so it never delays the first result.
 // Other messages it sends: {type: "progress", stage, text}, {type: "ready", versions},
 // {type: "boot-error", message}, {type: "scipy", ok, message}.
 
@@ -124,8 +125,10 @@ self.onmessage = async (event) => {
   if (msg.type === "init") {
     ready = boot(msg.config);
     ready.catch((err) => post({ type: "boot-error", message: err.message }));
-    // If nobody asks for a result soon, load scipy anyway.
-    ready.then(() => setTimeout(loadScipy, 3000), () => {});
+    return;
+  }
+  if (msg.type === "background") {
+    loadScipy();
     return;
   }
   const { id, fn, args } = msg;
@@ -137,5 +140,4 @@ self.onmessage = async (event) => {
     return;
   }
   answer(bridge, id, fn, args);
-  setTimeout(loadScipy, 0);
 };
