@@ -19,7 +19,7 @@ __all__ = ["map_points", "tree_map_logs", "path_points"]
 
 
 def _pieces(length_um, spacing_um):
-    return np.maximum(1, np.ceil(length_um / spacing_um - 1e-9)).astype(np.int64)
+    return np.maximum(1, np.ceil(length_um / spacing_um - 1e-9)).astype(np.intp)
 
 
 def map_points(tree, spacing_um):
@@ -59,4 +59,4 @@ def path_points(tree, sec, y_um, spacing_um):
         n = max(1, math.ceil(end / spacing_um - 1e-9))
         out_sec.extend([s] * n)
         out_y.extend(end * j / n for j in range(1, n + 1))
-    return np.array(out_sec, dtype=np.int64), np.array(out_y)
+    return np.array(out_sec, dtype=np.intp), np.array(out_y)

@@ -37,7 +37,7 @@ def point_terms(sol, sec, y_um):
         at P; ``y_node`` = total admittance at P (µS; inf at a killed end).
     """
     t = sol.tree
-    sec = np.atleast_1d(np.asarray(sec, dtype=np.int64))
+    sec = np.atleast_1d(np.asarray(sec, dtype=np.intp))
     y_um = np.clip(np.atleast_1d(np.asarray(y_um, dtype=float)), 0.0, t.length_um[sec])   # rounding of j·ℓ/n
     lam = t.lambda_um[sec]
     ky = (y_um / lam)[:, None] * sol.k[None, :]

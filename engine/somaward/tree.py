@@ -115,7 +115,7 @@ def build_tree(branches, membrane, soma=None):
     rm, ri, cm = float(membrane["Rm"]), float(membrane["Ri"]), float(membrane["Cm"])
     order, bparent, children = _branch_order(branches)
     rows, first_last = [], [None] * len(branches)
-    depth_end = np.zeros(len(branches), dtype=np.int64)   # level just after the branch
+    depth_end = np.zeros(len(branches), dtype=np.intp)   # level just after the branch
     for b in order:
         secs = _sections_of(branches[b])
         p = bparent[b]
@@ -131,11 +131,11 @@ def build_tree(branches, membrane, soma=None):
         first_last[b] = (first, len(rows) - 1)
         depth_end[b] = depth + len(secs)
     # level order: stable sort by depth keeps each branch's sections in order
-    depth = np.array([r[0] for r in rows], dtype=np.int64)
+    depth = np.array([r[0] for r in rows], dtype=np.intp)
     perm = np.argsort(depth, kind="stable")
     new_of_old = np.empty_like(perm)
     new_of_old[perm] = np.arange(len(perm))
-    parent_old = np.array([r[8] for r in rows], dtype=np.int64)
+    parent_old = np.array([r[8] for r in rows], dtype=np.intp)
     for b, (first, _) in enumerate(first_last):
         if parent_old[first] == -2:
             parent_old[first] = first_last[bparent[b]][1]
@@ -153,10 +153,10 @@ def build_tree(branches, membrane, soma=None):
     soma_g, soma_c = _soma_terms(soma, rm, cm)
     return Tree(
         branch_ids=tuple(b["id"] for b in branches),
-        branch_of=col(1, np.int64), parent=parent, length_um=length, diameter_um=diam,
+        branch_of=col(1, np.intp), parent=parent, length_um=length, diameter_um=diam,
         lambda_um=lam, g_inf_uS=1.0 / input_resistance_infinite_Mohm(diam, rm, ri),
         electrotonic_length=elec, start_um=col(4), path_start_um=path_start, x_start=x_start,
-        end_code=col(5, np.int64), end_g_uS=col(6), end_c_nF=col(7), levels=levels,
+        end_code=col(5, np.intp), end_g_uS=col(6), end_c_nF=col(7), levels=levels,
         branch_sections=tuple((int(new_of_old[f]), int(new_of_old[la])) for f, la in first_last),
         terminal_branch=np.array([not ch for ch in children]), branch_parent=bparent,
         tau_ms=membrane_time_constant_ms(rm, cm), soma_g_uS=soma_g, soma_c_nF=soma_c,
