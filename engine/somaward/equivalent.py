@@ -68,8 +68,7 @@ from .tree import END_CODES, branch_section_indices, build_tree, solve_tree
 
 __all__ = ["DEFAULT_TOLERANCE", "rule_ratio", "equivalent_diameter_um", "branch_point_rows",
            "section_join_rows", "terminal_rows", "cylinder_scenario", "compare_logs",
-           "equivalent_cylinder", "rule_table_rows", "comparison_rows", "methods_sentence",
-           "summary_lines"]
+           "equivalent_cylinder", "rule_table_rows", "comparison_rows", "methods_sentence"]
 
 DEFAULT_TOLERANCE = 0.05
 _END_NAMES = {v: k for k, v in END_CODES.items()}
@@ -496,24 +495,3 @@ def _at_site(cmp_):
     if err is None:
         return f"had no point at the synapse's X = {x:.3g}, which lies beyond its end"
     return f"the soma→synapse attenuation at X = {x:.3g} by {_pct(err)}"
-
-
-def summary_lines(report):
-    """Plain-text lines for the CLI: verdict, cylinder, comparison and each broken condition."""
-    eq = report["equivalent_cylinder"]
-    cyl, cmp_ = eq["cylinder"], eq["comparison"]
-    lines = [f"equivalent cylinder: conditions {'met' if eq['meets_conditions'] else 'NOT met'} "
-             f"(tolerance {100 * eq['tolerance']:g} %)",
-             f"  d_eq = {cyl['diameter_um']:.4g} µm, L = {cyl['electrotonic_length']:.4g} "
-             f"(terminal X {cyl['electrotonic_length_min']:.4g}–{cyl['electrotonic_length_max']:.4g}), "
-             f"length {cyl['length_um']:.4g} µm, end {cyl['end']}"]
-    for key, label in (("soma_to_site", "soma→site attenuation"),
-                       ("transfer_resistance_Mohm", "transfer resistance (MΩ)"),
-                       ("soma_input_resistance_Mohm", "soma input resistance (MΩ)")):
-        v = cmp_[key]
-        lines.append(f"  {label}: tree {_g(v['tree'])}, cylinder {_g(v['cylinder'])}, "
-                     f"error {_pct(v['relative_error'])}")
-    ng = cmp_["not_given_by_cylinder"]
-    lines.append(f"  not given by the cylinder (full tree): site input resistance "
-                 f"{_g(ng['site_input_resistance_Mohm'])} MΩ, site→soma attenuation {_g(ng['site_to_soma'])}")
-    return lines + [f"  ✗ {m}" for m in eq["messages"]]
