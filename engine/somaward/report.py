@@ -13,7 +13,7 @@ from . import __version__
 from .equivalent import equivalent_cylinder
 from .frequency import centroid_delays_ms, complex_step_ms, laplace_of_hz, site_response
 from .maps import map_points, path_points, tree_map_logs
-from .sanity import geometry_warnings, membrane_warnings
+from .sanity import electrotonic_warnings, geometry_warnings, membrane_warnings
 from .scenario import locate_synapse, validate
 from .sites import point_terms
 from .tree import branch_section_indices, build_tree, solve_tree
@@ -188,7 +188,7 @@ def solve(scenario):
         One line naming the field and what is allowed.
     """
     sc = validate(scenario)
-    warnings = membrane_warnings(sc["membrane"], sc["soma"]) + geometry_warnings(sc["branches"])
+    warnings = membrane_warnings(sc["membrane"], sc["soma"]) + geometry_warnings(sc["branches"], sc["soma"])
     tree = build_tree(sc["branches"], sc["membrane"], sc["soma"])
     index = {b["id"]: i for i, b in enumerate(sc["branches"])}
     b, dist = locate_synapse(sc["synapse"], sc["branches"], index)
@@ -196,6 +196,7 @@ def solve(scenario):
     sol_dc, steady, values = _steady_state(tree, sec, y, warnings)
     frequency, centroid = _frequency(tree, sec, y, sc["frequencies_hz"], warnings)
     lam, elec, secs, term_x = _branch_tables(tree, sc["branches"])
+    warnings += electrotonic_warnings(term_x)
     x_site = float(tree.x_start[sec] + y / tree.lambda_um[sec])
     report = {
         "engine_version": __version__,
