@@ -385,10 +385,20 @@ class QuietHandler(http.server.SimpleHTTPRequestHandler):
         pass
 
 
-def make_server(directory: Path, port: int = 0) -> http.server.ThreadingHTTPServer:
+class LocalServer(http.server.ThreadingHTTPServer):
+    """Threaded static server; a browser that hangs up mid-file is not an error here."""
+
+    daemon_threads = True
+
+    def handle_error(self, request, client_address):
+        if not isinstance(sys.exc_info()[1], (ConnectionResetError, BrokenPipeError)):
+            super().handle_error(request, client_address)
+
+
+def make_server(directory: Path, port: int = 0) -> LocalServer:
     """A threaded static server for ``directory`` on 127.0.0.1 (port 0: any free port)."""
     handler = partial(QuietHandler, directory=str(directory))
-    return http.server.ThreadingHTTPServer(("127.0.0.1", port), handler)
+    return LocalServer(("127.0.0.1", port), handler)
 
 
 def main(argv: list[str] | None = None) -> int:

@@ -166,7 +166,7 @@ def report(results, lat_input, lat_send, runs, recomputes) -> None:
     p, b = med["page"]["bytes"], med["bare"]["bytes"]
     print(f"{'bytes transferred, cold (MB)':44} {p / 1e6:12.2f} {b / 1e6:12.2f} {p / b:8.3f}")
     li, ls = statistics.median(lat_input), statistics.median(lat_send)
-    print(f"{f'recompute, input → DOM − debounce (ms, median of {recomputes})':44} {li:12.1f} "
+    print(f"{f'recompute, input→DOM − debounce, ms (n={recomputes})':44} {li:12.1f} "
           f"{'':12} {li / med['bare']['warm']:8.4f}  (÷ bare warm boot)")
     print(f"{'  same, ÷ bare cold boot':44} {'':12} {'':12} {li / med['bare']['cold']:8.4f}")
     print(f"{'recompute, request sent → DOM (ms)':44} {ls:12.1f}")

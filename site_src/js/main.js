@@ -6,7 +6,6 @@
 import { EngineClient } from "./worker-client.js";
 import { readForm, scenarioFromValues, showMessage, clearMessages } from "./quick-cable.js";
 import { renderResults } from "./results.js";
-import { renderPlots } from "./charts.js";
 
 const DEBOUNCE_MS = 250;
 const body = document.body;
@@ -19,6 +18,7 @@ reportHolder.id = "report-json";
 document.body.append(reportHolder);
 
 let client = null;
+let renderPlots = null;   // from charts.js, loaded while Python boots (it is the largest script)
 let latest = 0;       // sequence number of the newest request
 let timer = null;
 let haveResult = false;
@@ -43,7 +43,7 @@ function markStale() {
 
 function show(report, json) {
   renderResults(document.getElementById("results-body"), report);
-  renderPlots(document.getElementById("plots"), report);
+  if (renderPlots) renderPlots(document.getElementById("plots"), report);
   reportHolder.textContent = json;
   body.dataset.results = "fresh";
   body.dataset.tShown = performance.now().toFixed(2);
@@ -109,6 +109,7 @@ const handlers = {
   progress: (msg) => setStatus(readyText ? `${readyText} ${msg.text}` : msg.text),
   ready: (msg) => {
     body.dataset.state = "ready";
+    body.dataset.tReady = performance.now().toFixed(2);
     readyText = `Ready (engine ${msg.versions.engine ?? "?"}, numpy ${msg.versions.numpy}).`;
     setStatus(readyText);
   },
@@ -123,6 +124,13 @@ const handlers = {
 function start() {
   if (location.protocol === "file:") return;  // js/file-notice.js explains what to do
   client = new EngineClient(new URL(`./worker.js?v=${config.build}`, import.meta.url), config, handlers);
+  import("./charts.js").then((charts) => {
+    renderPlots = charts.renderPlots;
+    const json = reportHolder.textContent;
+    if (json) renderPlots(document.getElementById("plots"), JSON.parse(json));
+  }, (err) => {
+    for (const el of document.querySelectorAll("#plots .plot")) el.textContent = `Plots unavailable: ${err.message}`;
+  });
   setTimeout(() => {
     if (body.dataset.state === "loading") {
       fail(`Python did not start within ${config.bootTimeoutMs / 1000} s (${status.textContent}). ` +

@@ -8,7 +8,7 @@
 
 let ready = null;         // promise of the bridge's call function
 let scipyStarted = false;
-let lockPackages = {};    // lock-file name -> file name, to name the file in errors
+let lockPackages = {};    // lock-file name -> {file, url, sha256}, to name the file in errors
 
 const post = (msg) => self.postMessage(msg);
 const progress = (stage, text) => post({ type: "progress", stage, text });
@@ -38,6 +38,23 @@ function lockForPyodide(lock, lockURL, config) {
   return URL.createObjectURL(blob);
 }
 
+// Why a package file failed: missing, or different from what the lock file says.
+async function diagnose(name) {
+  const entry = lockPackages[name];
+  if (!entry) return "";
+  try {
+    const response = await fetch(entry.url, { cache: "no-store" });
+    if (!response.ok) return `${entry.file}: HTTP ${response.status} (missing from the folder?)`;
+    if (!self.crypto?.subtle) return `${entry.file}: could not be fetched or failed its checksum`;
+    const digest = await crypto.subtle.digest("SHA-256", await response.arrayBuffer());
+    const hex = Array.from(new Uint8Array(digest), (b) => b.toString(16).padStart(2, "0")).join("");
+    return hex === entry.sha256 ? "" :
+      `${entry.file}: SHA-256 ${hex.slice(0, 12)}… differs from the lock file's ${entry.sha256.slice(0, 12)}… (file changed or damaged)`;
+  } catch (err) {
+    return `${entry.file}: ${err.message}`;
+  }
+}
+
 // loadPackage does not reject on a 404 or a checksum mismatch: collect its error
 // messages and fail loudly, naming the files.
 async function loadChecked(pyodide, names) {
@@ -49,9 +66,10 @@ async function loadChecked(pyodide, names) {
   });
   const missing = names.filter((n) => !(n in pyodide.loadedPackages));
   if (errors.length || missing.length) {
-    const files = names.map((n) => lockPackages[n] || n).join(", ");
+    const files = names.map((n) => lockPackages[n]?.file || n).join(", ");
+    const found = (await Promise.all(names.map(diagnose))).filter(Boolean);
     const detail = errors.join(" ").replace(/\s+/g, " ").trim() || "not installed";
-    throw new Error(`could not load ${files}: ${detail}`);
+    throw new Error(`could not load ${files}: ${found.length ? found.join("; ") : detail}`);
   }
 }
 
@@ -60,13 +78,16 @@ async function boot(config) {
   const indexURL = new URL(config.indexURL, base).href;
   const lockURL = new URL(config.lockURL, base).href;
   progress("python", "loading Python…");
+  const modPromise = import(indexURL + "pyodide.mjs");
+  modPromise.catch(() => {});
   const lock = await fetchLock(lockURL);
   for (const [name, entry] of Object.entries(lock.packages)) {
-    lockPackages[name] = entry.file_name.split("/").pop();
+    const url = new URL(entry.file_name, config.cdn && !/^https?:/.test(entry.file_name) ? lockURL : indexURL).href;
+    lockPackages[name] = { file: entry.file_name.split("/").pop(), url, sha256: entry.sha256 };
   }
   let mod;
   try {
-    mod = await import(indexURL + "pyodide.mjs");
+    mod = await modPromise;
   } catch (err) {
     throw new Error(`could not load ${indexURL}pyodide.mjs: ${err.message}`);
   }
@@ -89,6 +110,7 @@ async function boot(config) {
   await loadChecked(pyodide, ["somaward", "somaward-page"]);
   const bridge = pyodide.pyimport("somaward_page");
   const versions = JSON.parse(bridge.versions());
+  versions.bootMs = Math.round(performance.now());
   post({ type: "ready", versions });
   return { pyodide, bridge };
 }

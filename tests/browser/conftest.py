@@ -22,14 +22,6 @@ sys.path.insert(0, str(ROOT))
 import build  # noqa: E402  (the repo's build.py)
 
 ARTIFACTS = ROOT / "test-artifacts"
-
-# Known engine defect under 32-bit numpy (wasm32, where np.intp is int32): maps.py builds the
-# map's repeat counts as np.int64 and np.repeat refuses them ("Cannot cast array data from
-# dtype('int64') to dtype('int32') according to the rule 'safe'"), so solve() fails in the page
-# and in Node although it passes in CPython. Tests that need a result carry this marker; it is
-# strict, so they turn red the moment the engine uses np.intp there, and the marker must go.
-ENGINE_WASM32_INTP = pytest.mark.xfail(
-    strict=True, reason="engine/somaward/maps.py: np.int64 repeat counts fail on wasm32 numpy")
 CHROMIUM_CANDIDATES = ("/usr/bin/chromium", "/usr/bin/chromium-browser",
                        "/usr/bin/google-chrome", "/usr/bin/google-chrome-stable")
 # Without the background-networking flags Chromium keeps calling home on a closed network.

@@ -11,7 +11,6 @@ from pathlib import Path
 import pytest
 
 import somaward
-from conftest import ENGINE_WASM32_INTP
 from helpers import differences, quick_scenario
 
 pytestmark = pytest.mark.browser
@@ -19,7 +18,6 @@ pytestmark = pytest.mark.browser
 SCRIPT = Path(__file__).with_name("node_solve.mjs")
 
 
-@ENGINE_WASM32_INTP
 @pytest.mark.parametrize("end, soma", [("sealed", 20), ("infinite", None), ("killed", 12.5)])
 def test_engine_solves_under_pyodide_in_node(site_dir, tmp_path, end, soma):
     node = shutil.which("node")

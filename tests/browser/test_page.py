@@ -13,7 +13,6 @@ import json
 import pytest
 
 import somaward
-from conftest import ENGINE_WASM32_INTP
 from helpers import (differences, open_page, quick_scenario, report_value, rounded_ok,
                      shown_report, submit, wait_result, BOOT_TIMEOUT_MS)
 
@@ -29,7 +28,6 @@ def type_values(page, values: dict):
         page.fill(f"#f-{name}", text)
 
 
-@ENGINE_WASM32_INTP
 def test_boots_ready_without_console_errors(page, served, artifacts):
     open_page(page, served.url)
     csp = page.get_attribute("meta[http-equiv=Content-Security-Policy]", "content")
@@ -41,7 +39,6 @@ def test_boots_ready_without_console_errors(page, served, artifacts):
     assert page.log.errors == []
 
 
-@ENGINE_WASM32_INTP
 def test_typed_values_give_cpythons_report(page, served, artifacts):
     open_page(page, served.url)
     type_values(page, TYPED)
@@ -72,7 +69,6 @@ def test_typed_values_give_cpythons_report(page, served, artifacts):
     assert page.log.errors == []
 
 
-@ENGINE_WASM32_INTP
 def test_no_scipy_file_before_first_result(page, served):
     open_page(page, served.url)
     first_epoch = float(page.get_attribute("body", "data-t-first-result-epoch"))
@@ -84,7 +80,6 @@ def test_no_scipy_file_before_first_result(page, served):
     assert page.log.urls("/numpy-")
 
 
-@ENGINE_WASM32_INTP
 def test_bad_value_message_beside_field_keeps_old_result(page, served, artifacts):
     open_page(page, served.url)
     good = page.locator("#results-body").inner_text()
@@ -117,7 +112,6 @@ def test_bad_value_message_beside_field_keeps_old_result(page, served, artifacts
     assert page.log.errors == []
 
 
-@ENGINE_WASM32_INTP
 def test_recomputes_while_typing(page, served):
     open_page(page, served.url)
     before = shown_report(page)["attenuation"]["steady_state"]["site_to_soma"]
@@ -130,7 +124,6 @@ def test_recomputes_while_typing(page, served):
     assert report["attenuation"]["steady_state"]["site_to_soma"] < before
 
 
-@ENGINE_WASM32_INTP
 def test_offline_reload_still_computes(context, site_copy, serve, artifacts):
     served = serve(site_copy)
     page = context.new_page()
@@ -161,8 +154,34 @@ def test_corrupted_vendored_file_names_it(page, site_copy, serve, artifacts):
     page.goto(served.url)
     page.wait_for_selector("body[data-state=error]", state="attached", timeout=BOOT_TIMEOUT_MS)
     assert page.is_visible("#boot-error")
-    assert numpy_file in page.text_content("#boot-error-text")
+    text = page.text_content("#boot-error-text")
+    assert numpy_file in text and "differs from the lock file" in text
     page.screenshot(path=artifacts / "page-corrupted-file.png")
+
+
+def test_missing_engine_wheel_names_it(page, site_copy, serve):
+    wheel = json.loads((site_copy / "build-info.json").read_text())["engine_wheel"]
+    (site_copy / "pyodide" / wheel).unlink()
+    served = serve(site_copy)
+    page.goto(served.url)
+    page.wait_for_selector("body[data-state=error]", state="attached", timeout=BOOT_TIMEOUT_MS)
+    text = page.text_content("#boot-error-text")
+    assert f"{wheel}: HTTP 404" in text
+
+
+def test_boot_that_hangs_times_out_with_a_message(page, site_copy, serve, artifacts):
+    index = site_copy / "index.html"
+    index.write_text(index.read_text().replace('"bootTimeoutMs": 90000', '"bootTimeoutMs": 3000'))
+    held = []
+    # Hold the Wasm module forever: Python never starts, nothing rejects.
+    page.context.route("**/pyodide.asm.wasm", lambda route: held.append(route))
+    served = serve(site_copy)
+    page.goto(served.url)
+    page.wait_for_selector("body[data-state=error]", state="attached", timeout=60_000)
+    assert held, "the Wasm request was not held"
+    text = page.text_content("#boot-error-text")
+    assert "did not start within 3 s" in text
+    page.screenshot(path=artifacts / "page-boot-timeout.png")
 
 
 def test_file_url_shows_how_to_serve(page, site_dir, artifacts):
@@ -173,7 +192,6 @@ def test_file_url_shows_how_to_serve(page, site_dir, artifacts):
     page.screenshot(path=artifacts / "page-file-url.png")
 
 
-@ENGINE_WASM32_INTP
 def test_tablet_width_and_keyboard(browser, served, artifacts):
     context = browser.new_context(viewport={"width": 768, "height": 1024})
     page = context.new_page()
