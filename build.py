@@ -74,6 +74,10 @@ CHART_LIBS = (
              "4358086467740777dd788d6b27a95cebdbaefdd50c730a3060117073bd7134cb"),
 )
 
+# The page's sections, in order: site_src/sections/<name>.html.j2 each. A later section
+# (branch table, paper export, …) adds its template here and its view in js/main.js.
+SECTIONS = ("quick-cable", "results", "plots")
+
 MIME = {".mjs": "text/javascript", ".js": "text/javascript", ".wasm": "application/wasm",
         ".json": "application/json", ".whl": "application/zip", ".zip": "application/zip",
         ".svg": "image/svg+xml", ".css": "text/css", ".html": "text/html"}
@@ -360,6 +364,7 @@ def build(out: Path, pyodide_dir: Path | None = None, cdn: bool = False) -> dict
               "bootTimeoutMs": 90000}
     context = {"build_hash": build_hash, "csp": csp(cdn), "config_json": json.dumps(config),
                "pyodide_version": PYODIDE_VERSION, "precache": sorted(hashes),
+               "sections": SECTIONS,
                "engine_version": wheels[0]["entry"]["version"]}
     render("index.html.j2", out / "index.html", context)
     context["precache"] = sorted([*hashes, "index.html"])
@@ -423,7 +428,12 @@ def main(argv: list[str] | None = None) -> int:
     print(f"build: preview with: python build.py --serve{again}   (or: python -m http.server "
           f"--bind 127.0.0.1 --directory {os.path.relpath(out)} 8000)")
     if args.serve:
-        server = make_server(out, args.port)
+        try:
+            server = make_server(out, args.port)
+        except OSError as exc:
+            print(f"build: error: cannot serve on 127.0.0.1:{args.port}: {exc.strerror} "
+                  f"(try --port N)", file=sys.stderr)
+            return 1
         print(f"build: serving http://127.0.0.1:{server.server_address[1]}/  (Ctrl-C stops)",
               flush=True)
         try:

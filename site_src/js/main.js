@@ -5,7 +5,6 @@
 // data-t-first-result, data-t-input, data-t-sent, data-t-shown.
 import { EngineClient } from "./worker-client.js";
 import { readForm, scenarioFromValues, showMessage, clearMessages } from "./quick-cable.js";
-import { renderResults } from "./results.js";
 
 const DEBOUNCE_MS = 250;
 const body = document.body;
@@ -18,7 +17,35 @@ reportHolder.id = "report-json";
 document.body.append(reportHolder);
 
 let client = null;
-let renderPlots = null;   // from charts.js, loaded while Python boots (it is the largest script)
+let lastReport = null;
+
+// Views of the report: each section that draws it names its module, the module's render
+// function and its element. They load while Python boots (the charting code is the largest
+// script) and redraw on every result. A new section adds one line here.
+const VIEWS = [
+  { module: "./results.js", render: "renderResults", target: "#results-body" },
+  { module: "./charts.js", render: "renderPlots", target: "#plots" },
+];
+
+function draw(view, report) {
+  const el = document.querySelector(view.target);
+  try {
+    view.fn(el, report);
+  } catch (err) {
+    el.textContent = `This part could not be drawn: ${err.message}`;
+  }
+}
+
+function loadViews() {
+  for (const view of VIEWS) {
+    import(view.module).then((mod) => {
+      view.fn = mod[view.render];
+      if (lastReport) draw(view, lastReport);
+    }, (err) => {
+      document.querySelector(view.target).textContent = `Not available: ${err.message}`;
+    });
+  }
+}
 let latest = 0;       // sequence number of the newest request
 let timer = null;
 let haveResult = false;
@@ -42,8 +69,8 @@ function markStale() {
 }
 
 function show(report, json) {
-  renderResults(document.getElementById("results-body"), report);
-  if (renderPlots) renderPlots(document.getElementById("plots"), report);
+  lastReport = report;
+  for (const view of VIEWS) if (view.fn) draw(view, report);
   reportHolder.textContent = json;
   body.dataset.results = "fresh";
   body.dataset.tShown = performance.now().toFixed(2);
@@ -124,13 +151,7 @@ const handlers = {
 function start() {
   if (location.protocol === "file:") return;  // js/file-notice.js explains what to do
   client = new EngineClient(new URL(`./worker.js?v=${config.build}`, import.meta.url), config, handlers);
-  import("./charts.js").then((charts) => {
-    renderPlots = charts.renderPlots;
-    const json = reportHolder.textContent;
-    if (json) renderPlots(document.getElementById("plots"), JSON.parse(json));
-  }, (err) => {
-    for (const el of document.querySelectorAll("#plots .plot")) el.textContent = `Plots unavailable: ${err.message}`;
-  });
+  loadViews();
   setTimeout(() => {
     if (body.dataset.state === "loading") {
       fail(`Python did not start within ${config.bootTimeoutMs / 1000} s (${status.textContent}). ` +

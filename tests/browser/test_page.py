@@ -112,6 +112,25 @@ def test_bad_value_message_beside_field_keeps_old_result(page, served, artifacts
     assert page.log.errors == []
 
 
+def test_engine_warnings_are_shown(page, served):
+    open_page(page, served.url)
+    page.fill("#f-soma_diameter", "200")
+    submit(page, "f-soma_diameter")
+    wait_result(page)
+    expected = somaward.solve(quick_scenario(distance=300, length=600, diameter=2,
+                                             soma_diameter=200, end="sealed",
+                                             Rm=20000, Ri=150, Cm=1))["warnings"]
+    assert expected, "this scenario should warn about the soma"
+    assert page.locator("#warnings li").all_text_contents() == expected
+    # No soma at all: an empty field.
+    page.fill("#f-soma_diameter", "")
+    submit(page, "f-soma_diameter")
+    wait_result(page)
+    report = shown_report(page)
+    assert report["scenario"]["soma"] is None and report["rho"] is None
+    assert page.locator("#results-body .num[data-key=rho]").text_content() == "—"
+
+
 def test_recomputes_while_typing(page, served):
     open_page(page, served.url)
     before = shown_report(page)["attenuation"]["steady_state"]["site_to_soma"]
