@@ -367,7 +367,9 @@ def build(out: Path, pyodide_dir: Path | None = None, cdn: bool = False) -> dict
                "sections": SECTIONS,
                "engine_version": wheels[0]["entry"]["version"]}
     render("index.html.j2", out / "index.html", context)
-    context["precache"] = sorted([*hashes, "index.html"])
+    versioned = ("css/page.css", "js/file-notice.js", "js/main.js", "js/worker.js",
+                 "pyodide/pyodide-lock.json")
+    context["precache"] = sorted([*hashes, "index.html", *(f"{v}?v={build_hash}" for v in versioned)])
     render("sw.js.j2", out / "sw.js", context)
     summary = {"build": build_hash, "pyodide_version": PYODIDE_VERSION, "cdn": cdn,
                "files": file_hashes(out),

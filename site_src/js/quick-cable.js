@@ -15,12 +15,14 @@ export const BRANCH_ID = "dendrite";
 
 const NUMBER = /^[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?$/;
 
-// A number when the text is one; null when empty; otherwise the text itself, so that
-// the engine answers with its own message about it.
+// A finite number when the text is one; null when empty; otherwise the text itself
+// (also for "1e999", which JSON cannot carry), so that the engine answers with its own
+// message about it.
 export function parseNumber(text) {
   const t = text.trim().replace(/\u2212/g, "-");
   if (t === "") return null;
-  return NUMBER.test(t) ? Number(t) : t;
+  const n = NUMBER.test(t) ? Number(t) : NaN;
+  return Number.isFinite(n) ? n : t;
 }
 
 export function readForm(form) {

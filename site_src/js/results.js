@@ -49,15 +49,15 @@ function row(label, value, unit, key) {
   return tr;
 }
 
+// One sentence, in a live region that stays in place, so a screen reader reads it on
+// every new result (and not the whole table).
 function headline(report) {
   const ss = report.attenuation.steady_state;
-  const p = document.createElement("p");
-  p.className = "headline";
-  p.append(`${roundForReading(ss.site_to_soma_percent)} % of the steady synaptic voltage reaches the soma`);
+  let text = `${roundForReading(ss.site_to_soma_percent)} % of the steady synaptic voltage reaches the soma`;
   if (ss.site_to_soma_fold !== null && ss.site_to_soma_fold !== undefined) {
-    p.append(` — a ${roundForReading(ss.site_to_soma_fold)}-fold attenuation.`);
+    text += ` — a ${roundForReading(ss.site_to_soma_fold)}-fold attenuation.`;
   }
-  return p;
+  return text;
 }
 
 function attenuationTable(report) {
@@ -99,7 +99,8 @@ export function renderResults(container, report) {
   const tbody = document.createElement("tbody");
   for (const [label, get, unit, key] of ROWS) tbody.append(row(label, get(report), unit, key));
   table.append(tbody);
-  const parts = [headline(report), attenuationTable(report), table];
+  document.getElementById("results-summary").textContent = headline(report);
+  const parts = [attenuationTable(report), table];
   if ((report.warnings || []).length) {
     parts.push(cell("h3", "Warnings"), warningsList(report));
   }
