@@ -470,3 +470,22 @@ def test_block_present_for_every_tree():
     """Common practice, no source: the report carries the block for a tree that fails too."""
     assert "equivalent_cylinder" in solve(_two_daughters(x_a=0.4, x_b=1.0))
     assert "equivalent_cylinder" in somaward.solve(dict(_two_daughters(), soma=None))
+
+
+def test_cylinder_curve_is_the_sealed_cylinder_profile():
+    """The cylinder's soma→site curve is cosh(L − X)/cosh(L) for sealed terminals, whatever the
+    soma (Rall 1959: with current entering at X = 0 the distal profile depends only on what lies
+    distal); checked against mpmath. Tree invented for the test."""
+    import mpmath
+
+    sc = {"membrane": {"Rm": 20000, "Ri": 150}, "soma": {"diameter": 15},
+          "branches": [{"id": "stem", "parent": None, "length": 300, "diameter": 2.0},
+                       {"id": "d1", "parent": "stem", "length": 200, "diameter": 1.2},
+                       {"id": "d2", "parent": "stem", "length": 150, "diameter": 0.9}],
+          "synapse": {"branch": "d1", "distance": 50}}
+    cyl = somaward.solve(sc)["equivalent_cylinder"]["cylinder"]
+    L = mpmath.mpf(cyl["electrotonic_length"])
+    xs, a = cyl["curve"]["electrotonic_distance"], cyl["curve"]["soma_to_site"]
+    assert xs[0] == 0.0 and xs[-1] == pytest.approx(float(L), rel=1e-12)
+    for x, v in zip(xs, a):
+        assert v == pytest.approx(float(mpmath.cosh(L - x) / mpmath.cosh(L)), rel=1e-12)

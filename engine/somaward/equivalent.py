@@ -67,7 +67,7 @@ from .sites import point_terms
 from .tree import END_CODES, branch_section_indices, build_tree, solve_tree
 
 __all__ = ["DEFAULT_TOLERANCE", "rule_ratio", "equivalent_diameter_um", "branch_point_rows",
-           "section_join_rows", "terminal_rows", "cylinder_scenario", "compare_logs",
+           "section_join_rows", "terminal_rows", "cylinder_scenario", "cylinder_curve", "compare_logs",
            "equivalent_cylinder", "rule_table_rows", "comparison_rows", "methods_sentence"]
 
 DEFAULT_TOLERANCE = 0.05
@@ -373,6 +373,21 @@ def _conditions(points, joins, terms):
             "like_ends": terms["like_ends"]}
 
 
+def cylinder_curve(cyl_tree, n_points=51):
+    """Steady-state soma→site attenuation along the equivalent cylinder, X from 0 to L.
+
+    Returns ``{"electrotonic_distance": [...], "soma_to_site": [...]}`` (n_points each), the curve
+    the page draws against the tree's own branches.
+    """
+    length = float(cyl_tree.length_um[0])
+    y = np.linspace(0.0, length, n_points)
+    t = point_terms(solve_tree(cyl_tree, np.array([0.0])), np.zeros(n_points, dtype=np.intp), y)
+    with np.errstate(divide="ignore", under="ignore"):
+        a = np.exp(t["down"][:, 0])
+    return {"electrotonic_distance": [float(v) for v in y / float(cyl_tree.lambda_um[0])],
+            "soma_to_site": [float(v) for v in a]}
+
+
 def equivalent_cylinder(tree, scenario, sec, y_um):
     """The ``equivalent_cylinder`` block of the report (keys in DEVELOPERS.md).
 
@@ -413,7 +428,8 @@ def equivalent_cylinder(tree, scenario, sec, y_um):
                      "lambda_um": cyl["lambda_um"], "length_um": cyl["length_um"],
                      "end": cyl["branches"][0]["end"], "stems": [tree.branch_ids[b] for b in
                                                                  range(len(tree.branch_ids)) if tree.branch_parent[b] < 0],
-                     "length_rule": LENGTH_RULE, "taper_rule": TAPER_RULE},
+                     "length_rule": LENGTH_RULE, "taper_rule": TAPER_RULE,
+                     "curve": cylinder_curve(cyl_tree)},
         "comparison": _comparison(tree, cyl_tree, sec, y_um),
     }
 
