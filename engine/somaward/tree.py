@@ -242,12 +242,17 @@ def _terminal_loads(tree, s, y0):
 
 def _up_pass(tree, s, y0, m):
     num, den = _terminal_loads(tree, s, y0)
+    y0d = y0 * den                         # Y0 · den of each distal load (den = 0: killed)
     gam, opg, omg, yin = (np.empty_like(y0) for _ in range(4))
     parent_row = np.where(tree.parent >= 0, tree.parent, tree.n_sections)
     for lo, hi in reversed(tree.levels):
-        g, p, q = cable.reflection(y0[lo:hi], num[lo:hi], den[lo:hi])
-        gam[lo:hi], opg[lo:hi], omg[lo:hi] = g, p, q
-        yin[lo:hi] = cable.through_admittance(y0[lo:hi], g, q, p, m[lo:hi])
+        a, load = y0d[lo:hi], num[lo:hi]
+        inv = 1.0 / (a + load)
+        g = np.multiply(a - load, inv, out=gam[lo:hi])
+        p = np.multiply(2.0 * a, inv, out=opg[lo:hi])
+        q = np.multiply(2.0 * load, inv, out=omg[lo:hi])
+        gm = g * m[lo:hi]
+        np.multiply(y0[lo:hi], (q - gm) / (p + gm), out=yin[lo:hi])
         np.add.at(num, parent_row[lo:hi], yin[lo:hi])
     return {"gam": gam, "opg": opg, "omg": omg, "yin": yin, "yload": num}
 
@@ -271,24 +276,49 @@ def path_to(tree, sec):
 
 
 def _down_pass(tree, levels, y0, kappa, m, up, y_root):
+    """Yup recursion level by level, then the ln-ratio sums D and U along the ancestors."""
     gam, opg, yin, yload = up["gam"], up["opg"], up["yin"], up["yload"]
     gup, opu, omu = (np.empty_like(y0) for _ in range(3))
-    down_log, up_log = np.empty_like(y0), np.empty_like(y0)
     node_y = np.empty_like(y0)        # total admittance at each section's distal node
-    zero = np.zeros(y0.shape[1], dtype=y0.dtype)
-    for lo, hi in levels:
-        p = tree.parent[lo:hi]
-        root = (p < 0)[:, None]
-        pp = np.maximum(p, 0)
-        y_prox = np.where(root, y_root[None, :], node_y[pp]) - yin[lo:hi]
-        g, a, b = cable.reflection(y0[lo:hi], y_prox)
-        gup[lo:hi], opu[lo:hi], omu[lo:hi] = g, a, b
-        with np.errstate(invalid="ignore", divide="ignore"):
-            yup_dist = cable.through_admittance(y0[lo:hi], g, b, a, m[lo:hi])
-            node_y[lo:hi] = yup_dist + yload[lo:hi]
-        base_d = np.where(root, zero[None, :], down_log[pp])
-        base_u = np.where(root, zero[None, :], up_log[pp])
-        zk = np.zeros_like(m[lo:hi])
-        down_log[lo:hi] = base_d + cable.log_voltage_ratio(kappa[lo:hi], gam[lo:hi], opg[lo:hi], zk, m[lo:hi])
-        up_log[lo:hi] = base_u + cable.log_voltage_ratio(kappa[lo:hi], g, a, zk, m[lo:hi])
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        for lo, hi in levels:
+            p = tree.parent[lo:hi]
+            if p[0] < 0:                  # sections leaving the recording site (level 0 only)
+                y_prox = y_root[None, :] - yin[lo:hi]
+            else:
+                y_prox = node_y[p] - yin[lo:hi]
+            a = y0[lo:hi]
+            inv = 1.0 / (a + y_prox)
+            g = np.multiply(a - y_prox, inv, out=gup[lo:hi])
+            op = np.multiply(2.0 * a, inv, out=opu[lo:hi])
+            om = np.multiply(2.0 * y_prox, inv, out=omu[lo:hi])
+            gm = g * m[lo:hi]
+            np.add(a * (om - gm) / (op + gm), yload[lo:hi], out=node_y[lo:hi])
+    sel = np.concatenate([np.arange(lo, hi) for lo, hi in levels]) if levels is not tree.levels else slice(None)
+    zero = np.zeros_like(m[sel])
+    own_d = cable.log_voltage_ratio(kappa[sel], gam[sel], opg[sel], zero, m[sel])
+    own_u = cable.log_voltage_ratio(kappa[sel], gup[sel], opu[sel], zero, m[sel])
+    down_log, up_log = np.empty_like(y0), np.empty_like(y0)
+    down_log[sel], up_log[sel] = _ancestor_sums(tree.parent, sel, own_d, own_u)
     return {"gup": gup, "opu": opu, "omu": omu, "down_log": down_log, "up_log": up_log}
+
+
+def _ancestor_sums(parent, sel, *own):
+    """Σ of ``own`` over each section and all its ancestors, by pointer jumping (O(log depth) steps).
+
+    ``sel`` is every section (slice) or one root-to-site path in order (index array).
+    """
+    if isinstance(sel, slice):
+        anc = parent.copy()
+        acc = [o.copy() for o in own]
+    else:                                   # a path: each element's parent is the one before it
+        anc = np.arange(len(sel)) - 1
+        acc = [o.copy() for o in own]
+    while True:
+        live = np.flatnonzero(anc >= 0)
+        if live.size == 0:
+            return acc
+        a = anc[live]
+        for x in acc:
+            x[live] += x[a]
+        anc[live] = anc[a]
