@@ -1,6 +1,6 @@
 """The published scenario schema and the engine's pure-Python validator agree (issue 2 step 3).
 
-Independent library: ``jsonschema`` (Draft 2020-12). Generated scenarios are invented; they are
+Source: the independent library ``jsonschema`` (Draft 2020-12). Generated scenarios are invented; they are
 semantically valid (unique ids, existing parents, synapse inside its branch and not on a killed
 end, ends only on terminals, finite numbers, map spacing not too fine), because those rules are
 outside the schema. Structural mutations are then applied and both validators must accept or
