@@ -76,7 +76,7 @@ CHART_LIBS = (
 
 # The page's sections, in order: site_src/sections/<name>.html.j2 each. A later section
 # (branch table, paper export, …) adds its template here and its view in js/main.js.
-SECTIONS = ("quick-cable", "results", "plots")
+SECTIONS = ("quick-cable", "results", "plots", "equivalent")
 
 MIME = {".mjs": "text/javascript", ".js": "text/javascript", ".wasm": "application/wasm",
         ".json": "application/json", ".whl": "application/zip", ".zip": "application/zip",

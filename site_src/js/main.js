@@ -5,6 +5,7 @@
 // data-t-first-result, data-t-input, data-t-sent, data-t-shown.
 import { EngineClient } from "./worker-client.js";
 import { readForm, scenarioFromValues, showMessage, clearMessages } from "./quick-cable.js";
+import { withTolerance } from "./equivalent-input.js";  // equivalent_cylinder.tolerance (section "equivalent")
 
 const DEBOUNCE_MS = 250;
 const body = document.body;
@@ -25,6 +26,7 @@ let lastReport = null;
 const VIEWS = [
   { module: "./results.js", render: "renderResults", target: "#results-body" },
   { module: "./charts.js", render: "renderPlots", target: "#plots" },
+  { module: "./equivalent.js", render: "renderEquivalent", target: "#equivalent-body" },
 ];
 
 function draw(view, report) {
@@ -91,7 +93,7 @@ function askBackground() {
 
 async function recompute() {
   const mine = ++latest;
-  const scenario = scenarioFromValues(readForm(form));
+  const scenario = withTolerance(scenarioFromValues(readForm(form)));
   body.dataset.tSent = performance.now().toFixed(2);
   body.dataset.input = "pending";
   try {
