@@ -100,6 +100,32 @@ def _end_terms(end):
     return END_CODES[end], 0.0, 0.0
 
 
+def _section_rows(branches):
+    """One row per section in breadth-first branch order, and each branch's (first, last) row.
+
+    A row is (depth, branch, length, diameter, start, end code, G, C, parent row), where the
+    parent row is −1 at the recording site; depth counts sections from the recording site.
+    """
+    order, bparent, children = _branch_order(branches)
+    rows, first_last = [], [None] * len(branches)
+    depth_end = np.zeros(len(branches), dtype=np.intp)   # level just after the branch
+    for b in order:
+        secs = _sections_of(branches[b])
+        p = bparent[b]
+        depth = 0 if p < 0 else depth_end[p]
+        code, g, c = _end_terms(branches[b].get("end", "sealed")) if not children[b] else (0, 0.0, 0.0)
+        start, first = 0.0, len(rows)
+        for j, (length, diam) in enumerate(secs):
+            last = j == len(secs) - 1
+            parent_row = (first + j - 1) if j else (-1 if p < 0 else first_last[p][1])
+            rows.append((depth + j, b, length, diam, start, code if last else 0, g if last else 0.0,
+                         c if last else 0.0, parent_row))
+            start += length
+        first_last[b] = (first, len(rows) - 1)
+        depth_end[b] = depth + len(secs)
+    return rows, first_last, bparent, children
+
+
 def build_tree(branches, membrane, soma=None):
     """Sections in level order from a validated branch table.
 
@@ -113,50 +139,26 @@ def build_tree(branches, membrane, soma=None):
         ``diameter`` (µm) and optional own ``Rm`` (Ω·cm²) of an isopotential spherical soma.
     """
     rm, ri, cm = float(membrane["Rm"]), float(membrane["Ri"]), float(membrane["Cm"])
-    order, bparent, children = _branch_order(branches)
-    rows, first_last = [], [None] * len(branches)
-    depth_end = np.zeros(len(branches), dtype=np.intp)   # level just after the branch
-    for b in order:
-        secs = _sections_of(branches[b])
-        p = bparent[b]
-        depth = 0 if p < 0 else depth_end[p]
-        code, g, c = _end_terms(branches[b].get("end", "sealed")) if not children[b] else (0, 0.0, 0.0)
-        start = 0.0
-        first = len(rows)
-        for j, (length, diam) in enumerate(secs):
-            last = j == len(secs) - 1
-            rows.append((depth + j, b, length, diam, start, code if last else 0, g if last else 0.0,
-                         c if last else 0.0, (len(rows) - 1) if j else (-1 if p < 0 else -2)))
-            start += length
-        first_last[b] = (first, len(rows) - 1)
-        depth_end[b] = depth + len(secs)
-    # level order: stable sort by depth keeps each branch's sections in order
-    depth = np.array([r[0] for r in rows], dtype=np.intp)
-    perm = np.argsort(depth, kind="stable")
+    rows, first_last, bparent, children = _section_rows(branches)
+    cols = list(zip(*rows))
+    depth = np.array(cols[0], dtype=np.intp)
+    perm = np.argsort(depth, kind="stable")          # level order, each branch's sections in order
     new_of_old = np.empty_like(perm)
     new_of_old[perm] = np.arange(len(perm))
-    parent_old = np.array([r[8] for r in rows], dtype=np.intp)
-    for b, (first, _) in enumerate(first_last):
-        if parent_old[first] == -2:
-            parent_old[first] = first_last[bparent[b]][1]
-    parent = np.where(parent_old[perm] >= 0, new_of_old[np.maximum(parent_old[perm], 0)], -1)
-    col = lambda k, dt=float: np.array([rows[i][k] for i in perm], dtype=dt)  # noqa: E731
+    parent_old = np.array(cols[8], dtype=np.intp)[perm]
+    parent = np.where(parent_old >= 0, new_of_old[np.maximum(parent_old, 0)], -1)
+    col = lambda k, dt=float: np.array(cols[k], dtype=dt)[perm]  # noqa: E731
     length, diam = col(2), col(3)
     lam = space_constant_um(diam, rm, ri)
     elec = length / lam
-    path_start, x_start = np.zeros(len(perm)), np.zeros(len(perm))
-    levels = _levels(depth[perm])
-    for lo, hi in levels[1:]:
-        p = parent[lo:hi]
-        path_start[lo:hi] = path_start[p] + length[p]
-        x_start[lo:hi] = x_start[p] + elec[p]
+    reach_um, reach_x = _ancestor_sums(parent, slice(None), length, elec)
     soma_g, soma_c = _soma_terms(soma, rm, cm)
     return Tree(
         branch_ids=tuple(b["id"] for b in branches),
         branch_of=col(1, np.intp), parent=parent, length_um=length, diameter_um=diam,
         lambda_um=lam, g_inf_uS=1.0 / input_resistance_infinite_Mohm(diam, rm, ri),
-        electrotonic_length=elec, start_um=col(4), path_start_um=path_start, x_start=x_start,
-        end_code=col(5, np.intp), end_g_uS=col(6), end_c_nF=col(7), levels=levels,
+        electrotonic_length=elec, start_um=col(4), path_start_um=reach_um - length, x_start=reach_x - elec,
+        end_code=col(5, np.intp), end_g_uS=col(6), end_c_nF=col(7), levels=_levels(depth[perm]),
         branch_sections=tuple((int(new_of_old[f]), int(new_of_old[la])) for f, la in first_last),
         terminal_branch=np.array([not ch for ch in children]), branch_parent=bparent,
         tau_ms=membrane_time_constant_ms(rm, cm), soma_g_uS=soma_g, soma_c_nF=soma_c,
