@@ -110,7 +110,8 @@ const CONDITIONS = [
   ["three_halves_rule_at_section_joins", "no diameter step inside a branch (a step is checked as a branch point with one child)"],
   ["equal_terminal_electrotonic_distance", "every terminal at the same electrotonic distance X from the soma"],
   ["uniform_membrane", "the same membrane and cytoplasm everywhere (this input has one set for the whole tree)"],
-  ["like_ends", "alike ends: all sealed, all killed, all going on for ever, or loads in proportion to d^3/2"],
+  ["like_ends", () => ["alike ends: all sealed, all killed, all going on for ever, or loads in proportion to d",
+    el("sup", "3/2")]],
 ];
 
 function verdict(eq) {
@@ -126,12 +127,12 @@ function verdict(eq) {
   const list = el("ul", null, "eq-conditions");
   for (const [key, label] of CONDITIONS) {
     const ok = eq.conditions[key];
-    let text = label;
+    const text = typeof label === "function" ? label() : [label];
     if (key === "equal_terminal_electrotonic_distance" && !eq.conditions.equal_terminal_electrotonic_distance_required) {
-      text += " — not needed here, every end goes on for ever";
+      text.push(" — not needed here, every end goes on for ever");
     }
-    if (key === "like_ends") text += ` — here: ${eq.end_condition}`;
-    const li = el("li", [el("span", ok ? "✓ met" : "✗ broken", "eq-mark"), " ", text]);
+    if (key === "like_ends") text.push(` — here: ${eq.end_condition}`);
+    const li = el("li", [el("span", ok ? "✓ met" : "✗ broken", "eq-mark"), " ", ...text]);
     li.dataset.condition = key;
     li.dataset.ok = String(ok);
     if (!ok) li.classList.add("eq-fail");
@@ -183,7 +184,8 @@ function sectionJoinTable(eq) {
     return markRow(tr, r.ok);
   });
   const box = table("Diameter steps inside a branch (tapers)",
-    ["branch", "where", "d before → after (µm)", "ratio of d^3/2", "departure from 1", "within tolerance"],
+    ["branch", "where", "d before → after (µm)", ["ratio of d", el("sup", "3/2")], "departure from 1",
+      "within tolerance"],
     rows, "none: every branch keeps one diameter");
   box.id = "eq-section-joins";
   return box;
@@ -217,7 +219,8 @@ function terminalTable(eq) {
 function cylinderTable(eq) {
   const c = eq.cylinder;
   const rows = [
-    ["Diameter d_eq = (Σ d_stem^3/2)^2/3", num(c.diameter_um, "cylinder.diameter_um"), "µm"],
+    [["Diameter d", el("sub", "eq"), " = (Σ d", el("sub", "stem"), el("sup", "3/2"), ")", el("sup", "2/3")],
+      num(c.diameter_um, "cylinder.diameter_um"), "µm"],
     ["Electrotonic length L", num(c.electrotonic_length, "cylinder.electrotonic_length"), ""],
     ["  range of the terminals' X", [num(c.electrotonic_length_min, "cylinder.electrotonic_length_min"), " – ",
       num(c.electrotonic_length_max, "cylinder.electrotonic_length_max")], ""],
@@ -339,6 +342,10 @@ function drawPlot(holder, report, eq) {
     syn.push({ x: cmp.electrotonic_distance, y: cmp.soma_to_site.cylinder, label: "", symbol: "diamond" });
   }
   const tree = treeRows(report);
+  const cyl = curve ? cylinderRows(curve) : [];
+  // The y axis starts at the tenth below the lowest value drawn, so that the gap between tree and
+  // cylinder can be seen; it always ends at 1.
+  const lowest = Math.min(1, ...tree.map((d) => d.y), ...cyl.map((d) => d.y), ...syn.map((d) => d.y));
   const w = Math.max(280, Math.min(720, holder.clientWidth || 560));
   const svg = Plot.plot({
     width: w,
@@ -347,12 +354,12 @@ function drawPlot(holder, report, eq) {
     marginBottom: 46,
     style: { fontSize: "12px", background: "transparent" },
     x: { label: "electrotonic distance X from the soma →", grid: true, labelOffset: 40 },
-    y: { label: "↑ V_site / V_soma (input at the soma, 0 Hz)", domain: [0, 1], grid: true },
+    y: { label: "↑ V_site / V_soma (input at the soma, 0 Hz)", grid: true,
+      domain: [Math.max(0, Math.floor(10 * lowest - 0.5) / 10), 1] },
     color: { legend: true, domain: [TREE_SERIES, CYL_SERIES], range: ["#6f7a8a", "#c2571a"] },
     marks: [
-      Plot.ruleY([0]),
       Plot.line(tree, { x: "x", y: "y", z: "branch", stroke: "series", strokeWidth: 1.6 }),
-      ...(curve ? [Plot.line(cylinderRows(curve), { x: "x", y: "y", stroke: "series", strokeWidth: 2.6,
+      ...(curve ? [Plot.line(cyl, { x: "x", y: "y", stroke: "series", strokeWidth: 2.6,
         strokeDasharray: "7,4" })] : []),
       Plot.dot(syn, { x: "x", y: "y", r: 4.5, fill: "#1d2330", symbol: "symbol" }),
       Plot.text(syn.slice(0, 1), { x: "x", y: "y", text: "label", dy: 14, fill: "#1d2330" }),
@@ -373,10 +380,13 @@ export function renderEquivalent(container, report) {
   const used = document.getElementById("eq-tolerance-used");
   if (used) used.textContent = `in use: ${eq.tolerance}`;
   const fig = plotFigure(report, eq);
-  const left = el("div", [verdict(eq), branchPointTable(eq), sectionJoinTable(eq), ...terminalTable(eq)], "eq-col");
-  const right = el("div", [el("h3", "At your synapse"), ...comparisonTable(eq), notGiven(eq), fig,
-    el("h3", "The cylinder"), ...cylinderTable(eq)], "eq-col");
-  container.replaceChildren(el("div", [left, right], "eq-grid"));
+  const synapse = el("div", [el("h3", "At your synapse"), ...comparisonTable(eq), notGiven(eq)], "eq-cell");
+  const rules = el("div", [branchPointTable(eq)], "eq-cell eq-wide");
+  const joins = el("div", [sectionJoinTable(eq)], "eq-cell");
+  const ends = el("div", terminalTable(eq), "eq-cell");
+  const cylinder = el("div", cylinderTable(eq), "eq-cell");
+  container.replaceChildren(el("div", [el("div", verdict(eq), "eq-cell"), synapse, rules, joins, ends,
+    el("div", fig, "eq-cell"), cylinder], "eq-grid"));
   const holder = fig.querySelector(".plot");
   try {
     drawPlot(holder, report, eq);
