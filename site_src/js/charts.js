@@ -14,7 +14,12 @@ function series(name, xs, ys) {
   return rows;
 }
 
+// One colour per origin of the signal, the same in every plot: the synapse's series come
+// first (orange), the soma's second (blue).
+const PALETTE = ["#c2571a", "#1b6ca8", "#3d8b37"];
+
 function chart(container, { rows, x, y, title }) {
+  const names = [...new Set(rows.map((r) => r.series))];
   const width = Math.max(280, Math.min(640, container.clientWidth || 480));
   const svg = Plot.plot({
     width,
@@ -25,7 +30,7 @@ function chart(container, { rows, x, y, title }) {
     x: { label: x.label, type: x.type || "linear", grid: true, labelOffset: 40,
       tickFormat: x.type === "log" ? "~g" : undefined },
     y: { label: y.label, type: y.type || "linear", grid: true, domain: y.domain, nice: true },
-    color: { legend: true, range: ["#1b6ca8", "#c2571a", "#3d8b37"] },
+    color: { legend: true, domain: names, range: PALETTE.slice(0, names.length) },
     marks: [
       Plot.line(rows, { x: "x", y: "y", stroke: "series", strokeWidth: 2 }),
       Plot.ruleY(y.rule === undefined ? [] : [y.rule]),
