@@ -76,7 +76,7 @@ CHART_LIBS = (
 
 # The page's sections, in order: site_src/sections/<name>.html.j2 each. A later section
 # (branch table, paper export, …) adds its template here and its view in js/main.js.
-SECTIONS = ("quick-cable", "results", "plots", "equivalent")
+SECTIONS = ("input-mode", "quick-cable", "tree-table", "results", "plots", "tree-map", "equivalent", "paper")
 
 MIME = {".mjs": "text/javascript", ".js": "text/javascript", ".wasm": "application/wasm",
         ".json": "application/json", ".whl": "application/zip", ".zip": "application/zip",
@@ -326,6 +326,17 @@ def file_hashes(out: Path) -> dict[str, str]:
             for p in sorted(out.rglob("*")) if p.is_file()}
 
 
+def demo_json() -> str:
+    """The invented demo cell (the branch table's starting content), as JSON that is safe
+    inside a <script type="application/json"> element."""
+    path = ROOT / "engine" / "somaward" / "demo" / "invented_pyramid.json"
+    try:
+        data = json.loads(path.read_text(encoding="utf-8"))
+    except (OSError, ValueError) as exc:
+        raise BuildError(f"demo scenario {path}: {exc}") from None
+    return json.dumps(data, ensure_ascii=False).replace("<", "\\u003c").replace(">", "\\u003e").replace("&", "\\u0026")
+
+
 def csp(cdn: bool) -> str:
     extra = " " + PYODIDE_CDN.split("/pyodide/")[0] if cdn else ""
     return ("default-src 'self'; "
@@ -364,7 +375,7 @@ def build(out: Path, pyodide_dir: Path | None = None, cdn: bool = False) -> dict
               "bootTimeoutMs": 90000}
     context = {"build_hash": build_hash, "csp": csp(cdn), "config_json": json.dumps(config),
                "pyodide_version": PYODIDE_VERSION, "precache": sorted(hashes),
-               "sections": SECTIONS,
+               "sections": SECTIONS, "demo_json": demo_json(),
                "engine_version": wheels[0]["entry"]["version"]}
     render("index.html.j2", out / "index.html", context)
     versioned = ("css/page.css", "js/file-notice.js", "js/main.js", "js/worker.js",

@@ -4,21 +4,22 @@
 // Timings (performance.now(), ms) are left on body for bench/page.py:
 // data-t-first-result, data-t-input, data-t-sent, data-t-shown.
 import { EngineClient } from "./worker-client.js";
-import { readForm, scenarioFromValues, showMessage, clearMessages } from "./quick-cable.js";
+import { Inputs } from "./inputs.js";  // quick cable or branch table; autosave, links, files
 import { withTolerance } from "./equivalent-input.js";  // equivalent_cylinder.tolerance (section "equivalent")
 
 const DEBOUNCE_MS = 250;
 const body = document.body;
 const config = JSON.parse(document.getElementById("somaward-config").textContent);
 const status = document.getElementById("status");
-const form = document.getElementById("quick-cable-form");
 const reportHolder = document.createElement("script");
 reportHolder.type = "application/json";
 reportHolder.id = "report-json";
 document.body.append(reportHolder);
 
 let client = null;
+let inputs = null;
 let lastReport = null;
+let lastJSON = "";
 
 // Views of the report: each section that draws it names its module, the module's render
 // function and its element. They load while Python boots (the charting code is the largest
@@ -27,12 +28,15 @@ const VIEWS = [
   { module: "./results.js", render: "renderResults", target: "#results-body" },
   { module: "./charts.js", render: "renderPlots", target: "#plots" },
   { module: "./equivalent.js", render: "renderEquivalent", target: "#equivalent-body" },
+  { module: "./tree-map.js", render: "renderTreeMap", target: "#tree-map" },
+  { module: "./paper.js", render: "renderPaper", target: "#paper", init: "initPaper" },
+  { module: "./figures.js", render: "addFigureButtons", target: "#sections" },
 ];
 
 function draw(view, report) {
   const el = document.querySelector(view.target);
   try {
-    view.fn(el, report);
+    view.fn(el, report, { client, json: lastJSON });
   } catch (err) {
     el.textContent = `This part could not be drawn: ${err.message}`;
   }
@@ -42,6 +46,7 @@ function loadViews() {
   for (const view of VIEWS) {
     import(view.module).then((mod) => {
       view.fn = mod[view.render];
+      if (view.init) mod[view.init](document.querySelector(view.target));
       if (lastReport) draw(view, lastReport);
     }, (err) => {
       document.querySelector(view.target).textContent = `Not available: ${err.message}`;
@@ -72,6 +77,7 @@ function markStale() {
 
 function show(report, json) {
   lastReport = report;
+  lastJSON = json;
   for (const view of VIEWS) if (view.fn) draw(view, report);
   reportHolder.textContent = json;
   body.dataset.results = "fresh";
@@ -93,13 +99,14 @@ function askBackground() {
 
 async function recompute() {
   const mine = ++latest;
-  const scenario = withTolerance(scenarioFromValues(readForm(form)));
+  const input = inputs.current();
+  const scenario = withTolerance(input.scenario());
   body.dataset.tSent = performance.now().toFixed(2);
   body.dataset.input = "pending";
   try {
     const { value, json } = await client.call("solve", scenario);
     if (mine !== latest) return;
-    clearMessages(form);
+    input.clearMessages();
     body.dataset.input = "valid";
     show(value, json);
     askBackground();
@@ -108,7 +115,7 @@ async function recompute() {
     if (err.type === "BootError") return;  // the boot error notice says it all
     body.dataset.input = "invalid";
     markStale();
-    showMessage(form, err.message);
+    input.showMessage(err.message);
     askBackground();
   }
 }
@@ -160,13 +167,16 @@ function start() {
         "The connection may be slow, or the browser blocked WebAssembly.");
     }
   }, config.bootTimeoutMs);
-  form.addEventListener("input", onInput);
-  form.addEventListener("submit", (event) => {
-    event.preventDefault();
-    clearTimeout(timer);
-    recompute();
-  });
-  recompute();
+  inputs = new Inputs(client, { compute: () => { clearTimeout(timer); recompute(); } });
+  for (const form of inputs.forms) {
+    form.addEventListener("input", onInput);
+    form.addEventListener("submit", (event) => {
+      event.preventDefault();
+      clearTimeout(timer);
+      recompute();
+    });
+  }
+  inputs.restore().then(recompute);
 }
 
 start();

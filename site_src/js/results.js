@@ -1,6 +1,5 @@
 // The results section: the report's numbers in a table, rounded, full value on click.
 import { numberButton, roundForReading } from "./format.js";
-import { BRANCH_ID } from "./quick-cable.js";
 
 export function pick(report, path) {
   let value = report;
@@ -11,16 +10,25 @@ export function pick(report, path) {
   return value;
 }
 
-// A per-branch value is a number, or a list with one number per section.
+// A value of the synapse's branch: a number, or a list with one number per section (then
+// the section that holds the synapse, found from the section lengths in the report).
 function branchValue(report, key) {
-  const v = pick(report, key)?.[BRANCH_ID];
-  return Array.isArray(v) ? v[0] : v;
+  const branch = report.site.branch;
+  const v = pick(report, key)?.[branch];
+  if (!Array.isArray(v)) return v;
+  const sections = report.sections?.[branch] || [];
+  let end = 0;
+  for (let k = 0; k < sections.length; k++) {
+    end += sections[k].length_um;
+    if (report.site.distance_um <= end) return v[k];
+  }
+  return v[v.length - 1];
 }
 
 const ROWS = [
-  ["Space constant λ of the dendrite", (r) => branchValue(r, "lambda_um"), "µm", "lambda_um"],
+  ["Space constant λ at the synapse", (r) => branchValue(r, "lambda_um"), "µm", "lambda_um"],
   ["Membrane time constant τm", (r) => r.tau_m_ms, "ms", "tau_m_ms"],
-  ["Electrotonic length L of the dendrite", (r) => branchValue(r, "electrotonic_length"), "", "electrotonic_length"],
+  ["Electrotonic length L of the synapse's branch", (r) => branchValue(r, "electrotonic_length"), "", "electrotonic_length"],
   ["Electrotonic distance X of the synapse", (r) => r.electrotonic_distance, "", "electrotonic_distance"],
   ["Dendrite-to-soma conductance ratio ρ", (r) => r.rho, "", "rho"],
   ["Input resistance at the soma", (r) => r.soma_input_resistance_Mohm, "MΩ", "soma_input_resistance_Mohm"],

@@ -13,9 +13,29 @@ import json
 import traceback
 
 import somaward
+from somaward import export
 
-# Engine functions the page may call; later sections add theirs here.
-FUNCTIONS = ("solve",)
+
+def paper(report: dict) -> dict:
+    """Every text the page copies into a paper, made by ``somaward.export`` from one report:
+    the results table and the 3/2-rule table in each format, the methods paragraph (the
+    "## Methods" part of ``render(report, "md")``, as ``somaward report --format md`` prints it)
+    and the stamp (engine version and scenario fingerprint) carried by every block."""
+    fmts = ("tsv", "md", "latex", "csv")
+    md = export.render(report, "md")
+    methods = md.split("## Methods\n\n", 1)[1] if "## Methods\n\n" in md else export.methods_text(report)
+    return {"table": {f: export.table(report, f) for f in fmts},
+            "rule_table": {f: export.rule_table(report, f) for f in fmts},
+            "methods": methods,
+            "stamp": f"Somaward {report['engine_version']}, scenario {export.fingerprint(report['scenario'])}"}
+
+
+# Engine functions the page may call (name → function); later sections add theirs here.
+FUNCTIONS = {
+    "solve": somaward.solve,
+    "validate": somaward.validate,
+    "paper": paper,
+}
 
 
 def _error(kind: str, message: str) -> tuple[bool, str]:
@@ -23,12 +43,12 @@ def _error(kind: str, message: str) -> tuple[bool, str]:
 
 
 def call(fn: str, args_json: str) -> tuple[bool, str]:
-    """Run ``somaward.<fn>(*args)``; return ``(ok, JSON string of value or error)``."""
+    """Run ``FUNCTIONS[fn](*args)``; return ``(ok, JSON string of value or error)``."""
     if fn not in FUNCTIONS:
         return _error("UnknownFunction", f"no engine function '{fn}' for the page")
     try:
         args = json.loads(args_json)
-        value = getattr(somaward, fn)(*args)
+        value = FUNCTIONS[fn](*args)
         return True, json.dumps(value, allow_nan=False)
     except somaward.ScenarioError as exc:
         return _error("ScenarioError", str(exc))

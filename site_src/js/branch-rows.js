@@ -1,0 +1,173 @@
+// The branch table's rows as data: the table state (text as typed) ⇄ a scenario dict for
+// somaward.solve (DEVELOPERS.md, "The scenario"), and rows ⇄ tab-separated text for
+// spreadsheets. No physics here: numbers are only parsed, never computed with.
+import { FREQUENCIES_HZ, parseNumber } from "./quick-cable.js";
+
+export const ENDS = ["sealed", "killed", "infinite", "load"];
+// Scenario keys the table does not edit but keeps, so that a file or link comes back whole.
+const CARRIED = ["title", "notes", "map_spacing_um", "map_frequency_hz", "equivalent_cylinder"];
+
+const text = (v) => (v === null || v === undefined ? "" : String(v));
+
+export function emptyBranch(id = "", parent = "") {
+  return { id, parent, sections: [{ length: "", diameter: "" }], end: "sealed", G: "", C: "" };
+}
+
+// Ids of branches that some other branch names as its parent.
+export function parentIds(branches) {
+  return new Set(branches.map((b) => b.parent).filter((p) => p !== ""));
+}
+
+export function isTerminal(branches, i) {
+  const id = branches[i].id;
+  return !branches.some((b, j) => j !== i && b.parent === id);
+}
+
+function endFor(branch) {
+  if (branch.end !== "load") return branch.end;
+  const load = { G: parseNumber(branch.G) };
+  if (branch.C.trim() !== "") load.C = parseNumber(branch.C);
+  return load;
+}
+
+// The scenario the table stands for: branches in table order (so the engine's
+// branches[i] is the table's i-th branch), `end` on every terminal branch.
+export function scenarioFromState(state) {
+  const branches = state.branches.map((b, i) => {
+    const out = { id: b.id, parent: b.parent === "" ? null : b.parent };
+    if (b.sections.length === 1) {
+      out.length = parseNumber(b.sections[0].length);
+      out.diameter = parseNumber(b.sections[0].diameter);
+    } else {
+      out.sections = b.sections.map((s) => ({ length: parseNumber(s.length), diameter: parseNumber(s.diameter) }));
+    }
+    if (isTerminal(state.branches, i)) out.end = endFor(b);
+    return out;
+  });
+  const c = state.carried || {};
+  const soma = state.soma_diameter.trim() === "" ? null : { diameter: parseNumber(state.soma_diameter) };
+  if (soma && c.soma_Rm !== undefined) soma.Rm = c.soma_Rm;
+  const syn = state.synapse;
+  const synapse = syn.mode === "path"
+    ? { path: syn.path, path_distance: parseNumber(syn.path_distance) }
+    : { branch: syn.branch, distance: parseNumber(syn.distance) };
+  if (c.current !== undefined) synapse.current = c.current;
+  const scenario = {};
+  if (c.title !== undefined) scenario.title = c.title;
+  if (c.notes !== undefined) scenario.notes = c.notes;
+  Object.assign(scenario, {
+    membrane: { Rm: parseNumber(state.Rm), Ri: parseNumber(state.Ri), Cm: parseNumber(state.Cm) },
+    soma,
+    branches,
+    synapse,
+    frequencies_hz: c.frequencies_hz ?? FREQUENCIES_HZ,
+  });
+  for (const key of CARRIED.slice(2)) if (c[key] !== undefined) scenario[key] = c[key];
+  return scenario;
+}
+
+function branchState(b) {
+  const sections = Array.isArray(b.sections) && b.sections.length
+    ? b.sections.map((s) => ({ length: text(s?.length), diameter: text(s?.diameter) }))
+    : [{ length: text(b.length), diameter: text(b.diameter) }];
+  const out = { id: text(b.id), parent: text(b.parent), sections, end: "sealed", G: "", C: "" };
+  if (b.end && typeof b.end === "object") Object.assign(out, { end: "load", G: text(b.end.G), C: text(b.end.C) });
+  else if (ENDS.includes(b.end)) out.end = b.end;
+  return out;
+}
+
+// A (validated or not) scenario → table state. Throws with a plain message when the shape
+// is not one the table can hold.
+export function stateFromScenario(s) {
+  if (!s || typeof s !== "object" || Array.isArray(s)) throw new Error("the scenario is not a JSON object");
+  if (!Array.isArray(s.branches) || !s.branches.length) throw new Error("branches: must be a non-empty list");
+  const mem = s.membrane || {};
+  const syn = s.synapse || {};
+  const carried = {};
+  for (const key of CARRIED) if (s[key] !== undefined) carried[key] = s[key];
+  if (s.frequencies_hz !== undefined) carried.frequencies_hz = s.frequencies_hz;
+  if (s.soma && s.soma.Rm !== undefined) carried.soma_Rm = s.soma.Rm;
+  if (syn.current !== undefined) carried.current = syn.current;
+  const byPath = syn.path !== undefined;
+  return {
+    branches: s.branches.map((b) => branchState(b || {})),
+    synapse: {
+      mode: byPath ? "path" : "branch",
+      branch: byPath ? "" : text(syn.branch),
+      distance: byPath ? "" : text(syn.distance),
+      path: byPath ? text(syn.path) : "",
+      path_distance: byPath ? text(syn.path_distance) : "",
+    },
+    soma_diameter: s.soma ? text(s.soma.diameter) : "",
+    Rm: text(mem.Rm), Ri: text(mem.Ri), Cm: text(mem.Cm),
+    carried,
+  };
+}
+
+// --- rows as tab-separated text -------------------------------------------------------
+export const TSV_COLUMNS = ["id", "parent", "length_um", "diameter_um", "end", "G_nS", "C_pF"];
+
+// One line per section; a branch's further sections repeat its id and parent.
+export function rowsToTSV(branches) {
+  const clean = (v) => String(v).replace(/[\t\r\n]+/g, " ");
+  const lines = [TSV_COLUMNS.join("\t")];
+  for (const b of branches) {
+    b.sections.forEach((s, k) => {
+      const end = k === 0 ? [b.end, b.end === "load" ? b.G : "", b.end === "load" ? b.C : ""] : ["", "", ""];
+      lines.push([b.id, b.parent, s.length, s.diameter, ...end].map(clean).join("\t"));
+    });
+  }
+  return lines.join("\n") + "\n";
+}
+
+const HEADER_NAMES = {
+  id: /^(branch[ _]?)?id$|^branch$|^name$/, parent: /^parent/, length: /^length/,
+  diameter: /^diam/, end: /^(far[ _])?end|^terminal/, G: /^g(_ns)?$|^g[ _(]|conductance/, C: /^c(_pf)?$|^c[ _(]|capacitance/,
+};
+const FIXED_ORDER = ["id", "parent", "length", "diameter", "end", "G", "C"];
+const ROOT_WORDS = new Set(["", "-", "—", "none", "null", "soma", "(soma)", "root"]);
+
+function headerMap(cells) {
+  const lower = cells.map((c) => c.trim().toLowerCase());
+  if (!lower.some((c) => HEADER_NAMES.id.test(c)) || !lower.some((c) => HEADER_NAMES.length.test(c))) return null;
+  const map = {};
+  lower.forEach((c, i) => {
+    for (const [name, re] of Object.entries(HEADER_NAMES)) if (map[name] === undefined && re.test(c)) { map[name] = i; break; }
+  });
+  return map;
+}
+
+// Text pasted from a spreadsheet → branches (table state). Header optional: with one, the
+// columns are found by name; without, they are id, parent, length, diameter, end, G, C.
+// Consecutive lines with the same id are the sections of one branch (a taper).
+export function rowsFromTSV(textIn) {
+  const lines = textIn.replace(/\r\n?/g, "\n").split("\n").filter((l) => l.trim() !== "");
+  if (!lines.length) throw new Error("nothing to paste: no rows found");
+  const split = (l) => (l.includes("\t") ? l.split("\t") : l.split(/ {2,}|,(?=\S)/)).map((c) => c.trim().replace(/^"(.*)"$/, "$1"));
+  let map = headerMap(split(lines[0]));
+  const body = map ? lines.slice(1) : lines;
+  if (!map) map = Object.fromEntries(FIXED_ORDER.map((n, i) => [n, i]));
+  const branches = [];
+  body.forEach((line) => {
+    const cells = split(line);
+    const get = (name) => (map[name] === undefined ? "" : (cells[map[name]] ?? "").trim());
+    const id = get("id");
+    const parentText = get("parent");
+    const parent = ROOT_WORDS.has(parentText.toLowerCase()) ? "" : parentText;
+    const section = { length: get("length"), diameter: get("diameter") };
+    const last = branches[branches.length - 1];
+    let b = last;
+    if (!last || last.id !== id || id === "") {
+      b = emptyBranch(id, parent);
+      b.sections = [];
+      branches.push(b);
+    }
+    b.sections.push(section);
+    const end = get("end").toLowerCase();
+    const G = get("G"), C = get("C");
+    if (G !== "" || end === "load" || end.startsWith("lumped")) Object.assign(b, { end: "load", G, C });
+    else if (ENDS.includes(end)) b.end = end;
+  });
+  if (!branches.length) throw new Error("only a header line was pasted; no rows");
+  return branches;
+}

@@ -1,0 +1,207 @@
+// Which input the page computes from (the quick cable or the branch table), and keeping that
+// input: autosave, the link in the URL fragment, scenario files, the demo. Links and files are
+// checked by the engine (somaward.validate) before they replace anything; a bad one is named
+// and the saved work stays as it was.
+import { readForm, scenarioFromValues, showMessage as quickMessage, clearMessages as quickClear } from "./quick-cable.js";
+import { TreeTable } from "./tree-table.js";
+import { copyText } from "./clipboard.js";
+import * as keep from "./keep.js";
+
+const SAVE_DELAY_MS = 400;
+const $ = (sel) => document.querySelector(sel);
+
+function quickAdapter(form) {
+  return {
+    form,
+    scenario: () => scenarioFromValues(readForm(form)),
+    showMessage: (m) => quickMessage(form, m),
+    clearMessages: () => quickClear(form),
+    fits: (s) => Array.isArray(s.branches) && s.branches.length === 1 && !s.branches[0].sections && s.synapse?.branch !== undefined,
+    load(s) {
+      const b = s.branches[0];
+      const text = (v) => (v === null || v === undefined ? "" : String(v));
+      const values = { distance: s.synapse.distance, length: b.length, diameter: b.diameter,
+        soma_diameter: s.soma ? s.soma.diameter : "", Rm: s.membrane?.Rm, Ri: s.membrane?.Ri, Cm: s.membrane?.Cm };
+      for (const [k, v] of Object.entries(values)) form.querySelector(`#f-${k}`).value = text(v);
+      const end = typeof b.end === "string" ? b.end : "sealed";
+      const radio = form.querySelector(`input[name=end][value="${CSS.escape(end)}"]`) || form.querySelector("input[name=end][value=sealed]");
+      radio.checked = true;
+    },
+  };
+}
+
+export class Inputs {
+  constructor(client, { compute }) {
+    this.client = client;
+    this.compute = compute;
+    this.quick = quickAdapter($("#quick-cable-form"));
+    this.tree = new TreeTable($("#tree-table"));
+    this.modeForm = $("#mode-form");
+    this.demo = JSON.parse($("#demo-scenario").textContent);
+    this.timer = null;
+    this.saves = 0;
+    this.forms = [this.quick.form, this.tree.form, this.modeForm];
+    this.tree.load(this.demo);
+    for (const f of this.forms) f.addEventListener("input", () => this.scheduleSave());
+    this.modeForm.addEventListener("input", () => this.setMode(this.modeForm.querySelector("input[name=mode]:checked").value));
+    this.wireTools();
+    window.addEventListener("hashchange", () => this.openLink(location.hash, true));
+  }
+
+  get mode() {
+    return document.body.dataset.mode === "tree" ? "tree" : "quick";
+  }
+
+  current() {
+    return this.mode === "tree" ? this.tree : this.quick;
+  }
+
+  setMode(mode) {
+    document.body.dataset.mode = mode;
+    this.modeForm.querySelector(`input[name=mode][value=${mode}]`).checked = true;
+  }
+
+  snapshot() {
+    return { mode: this.mode, scenario: this.current().scenario() };
+  }
+
+  apply(snapshot) {
+    const mode = snapshot.mode === "quick" && this.quick.fits(snapshot.scenario) ? "quick" : "tree";
+    (mode === "quick" ? this.quick : this.tree).load(snapshot.scenario);
+    this.setMode(mode);
+  }
+
+  // At start: the saved work (or the demo), then a link in the URL if there is one.
+  async restore() {
+    this.setMode("quick");
+    const saved = keep.loadSaved();
+    if (saved) {
+      try {
+        this.apply(saved);
+        this.status("Your saved inputs are back (kept in this browser).");
+      } catch {
+        this.setMode("quick");
+      }
+    }
+    if (location.hash.length > 1) await this.openLink(location.hash, false);
+  }
+
+  status(text) {
+    $("#keep-status").textContent = text;
+  }
+
+  error(text) {
+    $("#keep-error").textContent = text;
+  }
+
+  async validated(scenario) {
+    const { value } = await this.client.call("validate", scenario);
+    return value;
+  }
+
+  async openLink(hash, recompute) {
+    let snap;
+    try {
+      snap = await keep.decodeFragment(hash);
+      if (this.lastFragment === hash.replace(/^#/, "")) return;
+      await this.validated(snap.scenario);
+      this.apply(snap);
+    } catch (err) {
+      this.error(`This link could not be opened: ${err.message}. ` +
+        "The inputs shown are your saved work (or the demo), unchanged; nothing was overwritten.");
+      document.body.dataset.link = "bad";
+      return;
+    }
+    document.body.dataset.link = "opened";
+    this.error("");
+    this.replaceSaved("Opened the inputs from the link.");
+    if (recompute) this.compute();
+  }
+
+  // The inputs were replaced wholesale: save them, keeping the previous save one click away.
+  replaceSaved(words) {
+    const had = keep.keepPrevious();
+    $("#back-to-previous").hidden = !had;
+    this.status(words + (had ? " Your previous work is kept: “Back to my previous work” returns to it." : ""));
+    this.saveNow();
+  }
+
+  scheduleSave() {
+    clearTimeout(this.timer);
+    this.timer = setTimeout(() => this.saveNow(), SAVE_DELAY_MS);
+  }
+
+  async saveNow() {
+    clearTimeout(this.timer);
+    const snap = this.snapshot();
+    const ok = keep.save(snap);
+    try {
+      const fragment = await keep.encodeFragment(snap);
+      this.lastFragment = fragment;
+      history.replaceState(null, "", `${location.pathname}${location.search}#${fragment}`);
+    } catch {
+      // no CompressionStream: the link button says so
+    }
+    document.body.dataset.saved = String(++this.saves);
+    if (!ok) this.status("This browser does not let the page save (private mode?); use “Save the scenario as JSON”.");
+  }
+
+  async openFile(file) {
+    let scenario;
+    try {
+      scenario = keep.parseFile(file.name, await file.text());
+      await this.validated(scenario);
+      this.tree.load(scenario);
+      this.setMode("tree");
+    } catch (err) {
+      this.error(`Not opened: ${err.message}. Your inputs and your saved work are unchanged.`);
+      document.body.dataset.imported = "bad";
+      return;
+    }
+    this.error("");
+    document.body.dataset.imported = "ok";
+    this.replaceSaved(`Opened ${file.name}.`);
+    this.compute();
+  }
+
+  wireTools() {
+    $("#copy-link").addEventListener("click", async () => {
+      await this.saveNow();
+      if (!location.hash.startsWith(`#${keep.PREFIX}`)) {
+        this.status("This browser cannot pack the inputs into a link (it lacks CompressionStream); save the scenario as JSON instead.");
+        return;
+      }
+      const how = await copyText(location.href);
+      this.status(`${how === "manual" ? "Link ready to copy" : "Link copied"} (${location.href.length} characters); it reopens exactly these inputs.`);
+    });
+    $("#export-json").addEventListener("click", () => {
+      keep.downloadJSON(this.current().scenario(), "somaward-scenario.json");
+    });
+    $("#import-json").addEventListener("change", (event) => {
+      const file = event.target.files[0];
+      event.target.value = "";
+      if (file) this.openFile(file);
+    });
+    $("#back-to-demo").addEventListener("click", () => {
+      this.tree.load(this.demo);
+      this.setMode("tree");
+      this.error("");
+      this.replaceSaved("The invented demo cell is back.");
+      this.compute();
+    });
+    $("#back-to-previous").addEventListener("click", () => {
+      const prev = keep.loadPrevious();
+      if (!prev) return;
+      this.apply(prev);
+      keep.save(prev);
+      this.saveNow();
+      $("#back-to-previous").hidden = true;
+      this.status("Your previous work is back.");
+      this.compute();
+    });
+    $("#copy-rows").addEventListener("click", async () => {
+      const how = await copyText(this.tree.copyText());
+      $("#paste-msg").textContent = how === "manual" ? "Rows ready to copy (see the box)." : "Rows copied as tab-separated text.";
+    });
+  }
+}

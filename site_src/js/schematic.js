@@ -1,0 +1,111 @@
+// A small drawing of the branch table (a dendrogram): each branch a horizontal line whose
+// length is its length in µm, drawn from its parent's far end; line width follows each
+// section's diameter; the synapse is a marked dot. Drawing only — nothing here is physics.
+const NS = "http://www.w3.org/2000/svg";
+
+function svgEl(tag, attrs = {}, text) {
+  const node = document.createElementNS(NS, tag);
+  for (const [k, v] of Object.entries(attrs)) node.setAttribute(k, String(v));
+  if (text !== undefined) node.textContent = text;
+  return node;
+}
+
+const num = (v) => (typeof v === "number" && Number.isFinite(v) && v > 0 ? v : 0);
+
+function sectionsOf(b) {
+  const list = Array.isArray(b.sections) ? b.sections : [{ length: b.length, diameter: b.diameter }];
+  return list.map((s) => ({ length: num(s?.length), diameter: num(s?.diameter) }));
+}
+
+// x of each branch's start and end (path distance, µm), y slot of each branch.
+function layout(branches) {
+  const index = new Map();
+  branches.forEach((b, i) => { if (!index.has(b.id)) index.set(b.id, i); });
+  const children = branches.map(() => []);
+  const roots = [];
+  branches.forEach((b, i) => {
+    const p = b.parent === null || b.parent === undefined ? undefined : index.get(b.parent);
+    if (p === undefined || p === i) roots.push(i);
+    else children[p].push(i);
+  });
+  const start = new Array(branches.length).fill(0);
+  const y = new Array(branches.length).fill(0);
+  const seen = new Set();
+  let slot = 0;
+  const place = (i, x0) => {
+    if (seen.has(i)) return y[i];
+    seen.add(i);
+    start[i] = x0;
+    const x1 = x0 + sectionsOf(branches[i]).reduce((a, s) => a + s.length, 0);
+    const ys = children[i].map((c) => place(c, x1));
+    y[i] = ys.length ? (Math.min(...ys) + Math.max(...ys)) / 2 : slot++;
+    return y[i];
+  };
+  roots.forEach((r) => place(r, 0));
+  branches.forEach((_, i) => place(i, 0));  // anything left over (a loop of parents)
+  return { start, y, slots: Math.max(slot, 1), children, index };
+}
+
+function synapsePoint(scenario, lay) {
+  const syn = scenario.synapse || {};
+  const bs = scenario.branches;
+  if (syn.path !== undefined) {
+    let i = lay.index.get(syn.path);
+    const d = num(syn.path_distance);
+    while (i !== undefined) {
+      const len = sectionsOf(bs[i]).reduce((a, s) => a + s.length, 0);
+      if (d >= lay.start[i] || bs[i].parent === null) return { i, x: Math.min(d, lay.start[i] + len) };
+      i = lay.index.get(bs[i].parent);
+    }
+    return null;
+  }
+  const i = lay.index.get(syn.branch);
+  return i === undefined ? null : { i, x: lay.start[i] + num(syn.distance) };
+}
+
+export function drawSchematic(container, scenario) {
+  const bs = scenario.branches || [];
+  const lay = layout(bs);
+  const ends = bs.map((b, i) => lay.start[i] + sectionsOf(b).reduce((a, s) => a + s.length, 0));
+  const total = Math.max(1, ...ends);
+  const W = 460, left = 34, right = 86, rowH = 22, top = 16;
+  const H = top * 2 + lay.slots * rowH + 18;
+  const sx = (x) => left + (x / total) * (W - left - right);
+  const sy = (s) => top + s * rowH + rowH / 2;
+  const width = (d) => Math.max(1, Math.min(9, d * 1.6));
+  const svg = svgEl("svg", { viewBox: `0 0 ${W} ${H}`, width: W, height: H, role: "img", class: "schematic-svg" });
+  svg.append(svgEl("title", {}, "Schematic of the branch table: lengths to scale, line width follows diameter"));
+  const g = svgEl("g", { stroke: "#1d2330", "stroke-linecap": "butt", fill: "none" });
+  bs.forEach((b, i) => {
+    const p = b.parent === null || b.parent === undefined ? undefined : lay.index.get(b.parent);
+    const y = sy(lay.y[i]);
+    const y0 = p === undefined ? sy((lay.slots - 1) / 2) : sy(lay.y[p]);
+    if (p === undefined && b.parent !== null && b.parent !== undefined && b.parent !== "") {
+      g.append(svgEl("line", { x1: sx(0), y1: y0, x2: sx(0), y2: y, "stroke-dasharray": "3 3", "stroke-width": 1, stroke: "#a51d24" }));
+    } else if (y0 !== y) {
+      g.append(svgEl("line", { x1: sx(lay.start[i]), y1: y0, x2: sx(lay.start[i]), y2: y, "stroke-width": 1, stroke: "#9aa3b0" }));
+    }
+    let x = lay.start[i];
+    for (const s of sectionsOf(b)) {
+      g.append(svgEl("line", { x1: sx(x), y1: y, x2: sx(x + s.length), y2: y, "stroke-width": width(s.diameter) }));
+      x += s.length;
+    }
+    svg.append(svgEl("text", { x: sx(ends[i]) + 4, y: y + 4, "font-size": 11, fill: "#5a6270" }, String(b.id ?? "")));
+  });
+  svg.append(g);
+  const soma = scenario.soma;
+  const r = soma && num(soma.diameter) ? Math.max(4, Math.min(12, num(soma.diameter) / 2)) : 0;
+  const mid = sy((lay.slots - 1) / 2);
+  if (r) svg.append(svgEl("circle", { cx: sx(0) - r, cy: mid, r, fill: "#c9d3df", stroke: "#1d2330" }));
+  else svg.append(svgEl("text", { x: 2, y: mid + 4, "font-size": 10, fill: "#5a6270" }, "root"));
+  const syn = synapsePoint(scenario, lay);
+  if (syn) {
+    const cx = sx(Math.min(syn.x, ends[syn.i])), cy = sy(lay.y[syn.i]);
+    svg.append(svgEl("circle", { cx, cy, r: 5, fill: "#c2571a", stroke: "#fff", "stroke-width": 1.5, class: "synapse-mark" }));
+    svg.append(svgEl("text", { x: cx - 4, y: cy - 8, "font-size": 10, fill: "#c2571a" }, "synapse"));
+  }
+  const bar = Math.pow(10, Math.floor(Math.log10(total / 3)));
+  svg.append(svgEl("line", { x1: sx(0), y1: H - 10, x2: sx(bar), y2: H - 10, stroke: "#1d2330", "stroke-width": 2 }));
+  svg.append(svgEl("text", { x: sx(bar) + 4, y: H - 6, "font-size": 10, fill: "#5a6270" }, `${bar} µm`));
+  container.replaceChildren(svg);
+}

@@ -1,0 +1,351 @@
+// The branch-table editor: rows of branches (each with one or more sections), the synapse,
+// the soma and the membrane. Holds the table state as typed text; branch-rows.js turns it into
+// a scenario. Every user text goes into the page through value / textContent only.
+import { emptyBranch, ENDS, isTerminal, rowsFromTSV, rowsToTSV, scenarioFromState, stateFromScenario } from "./branch-rows.js";
+import { drawSchematic } from "./schematic.js";
+
+const END_LABELS = { sealed: "sealed", killed: "killed", infinite: "goes on for ever", load: "lumped load G, C" };
+
+function el(tag, props = {}, ...children) {
+  const node = document.createElement(tag);
+  for (const [k, v] of Object.entries(props)) {
+    if (k === "dataset") Object.assign(node.dataset, v);
+    else if (k in node) node[k] = v;
+    else node.setAttribute(k, v);
+  }
+  node.append(...children);
+  return node;
+}
+
+function option(value, label, selected) {
+  const o = el("option", { value, textContent: label });
+  if (selected) o.selected = true;
+  return o;
+}
+
+export class TreeTable {
+  constructor(root) {
+    this.form = root.querySelector("#tree-form");
+    this.table = root.querySelector("#branch-table");
+    this.message = root.querySelector("#tree-message");
+    this.schematic = root.querySelector("#schematic");
+    this.carriedNote = root.querySelector("#tree-carried");
+    this.pasteMsg = root.querySelector("#paste-msg");
+    this.undo = null;
+    this.state = null;
+    this.table.addEventListener("input", (e) => this.onCellInput(e));
+    this.table.addEventListener("click", (e) => this.onAction(e));
+    this.table.addEventListener("paste", (e) => this.onPaste(e));
+    root.querySelector("#add-branch").addEventListener("click", () => this.addBranch());
+    root.querySelector("#paste-replace").addEventListener("click", () => this.pasteFromBox(true));
+    root.querySelector("#paste-append").addEventListener("click", () => this.pasteFromBox(false));
+    root.querySelector("#paste-undo").addEventListener("click", () => this.undoPaste());
+    this.form.addEventListener("input", (e) => this.onFormInput(e));
+  }
+
+  // --- state in and out ---
+  scenario() {
+    this.readSide();
+    return scenarioFromState(this.state);
+  }
+
+  load(scenario) {
+    this.state = stateFromScenario(scenario);
+    this.render();
+  }
+
+  changed() {
+    this.refreshDerived();
+    this.form.dispatchEvent(new Event("input", { bubbles: true }));
+  }
+
+  readSide() {
+    const f = this.form;
+    const s = this.state;
+    s.synapse.mode = f.querySelector("input[name=t-syn-mode]:checked")?.value ?? "branch";
+    s.synapse.branch = f.querySelector("#t-syn-branch").value;
+    s.synapse.distance = f.querySelector("#t-syn-distance").value;
+    s.synapse.path = f.querySelector("#t-syn-path").value;
+    s.synapse.path_distance = f.querySelector("#t-syn-path_distance").value;
+    for (const k of ["soma_diameter", "Rm", "Ri", "Cm"]) s[k] = f.querySelector(`#t-${k}`).value;
+  }
+
+  // --- rendering ---
+  render() {
+    const s = this.state;
+    for (const tb of [...this.table.tBodies]) tb.remove();
+    s.branches.forEach((b, i) => this.table.append(this.branchBody(b, i)));
+    const f = this.form;
+    f.querySelector(`input[name=t-syn-mode][value=${s.synapse.mode === "path" ? "path" : "branch"}]`).checked = true;
+    f.querySelector("#t-syn-distance").value = s.synapse.distance;
+    f.querySelector("#t-syn-path_distance").value = s.synapse.path_distance;
+    for (const k of ["soma_diameter", "Rm", "Ri", "Cm"]) f.querySelector(`#t-${k}`).value = s[k];
+    this.refreshDerived();
+    this.showCarried();
+  }
+
+  showCarried() {
+    const c = this.state.carried || {};
+    const parts = [];
+    if (c.title) parts.push(`“${c.title}”`);
+    if (c.current) parts.push(`synaptic current: ${c.current.shape ?? "given"}`);
+    if (c.soma_Rm !== undefined) parts.push(`soma Rm ${c.soma_Rm} Ω·cm²`);
+    for (const k of ["map_spacing_um", "map_frequency_hz"]) if (c[k] !== undefined) parts.push(`${k} = ${c[k]}`);
+    if (c.frequencies_hz) parts.push(`${c.frequencies_hz.length} frequencies`);
+    this.carriedNote.textContent = parts.length ? `Also kept from the loaded scenario (not edited here): ${parts.join("; ")}.` : "";
+  }
+
+  branchBody(b, i) {
+    const tb = el("tbody", { className: "branch", dataset: { b: String(i) } });
+    b.sections.forEach((sec, k) => tb.append(this.sectionRow(b, i, sec, k)));
+    tb.append(el("tr", { className: "row-msg" }, el("td", { colSpan: 8 }, el("p", { className: "field-msg", id: `t-b${i}-msg` }))));
+    return tb;
+  }
+
+  input(i, k, field, value, label) {
+    return el("input", {
+      type: "text", value, inputmode: field === "id" ? "text" : "decimal", className: `cell cell-${field}`,
+      dataset: { b: String(i), s: String(k), f: field }, ariaLabel: label, spellcheck: false,
+    });
+  }
+
+  sectionRow(b, i, sec, k) {
+    const tr = el("tr", { className: k === 0 ? "branch-row" : "section-row" });
+    const first = k === 0;
+    const name = first ? "" : ` section ${k + 1}`;
+    if (first) {
+      tr.append(el("td", {}, this.input(i, 0, "id", b.id, `branch ${i + 1} id`)));
+      const sel = el("select", { className: "cell cell-parent", dataset: { b: String(i), s: "0", f: "parent" }, ariaLabel: `branch ${i + 1} parent` });
+      tr.append(el("td", {}, sel));
+    } else {
+      tr.append(el("td", { colSpan: 2, className: "section-label", textContent: `↳ section ${k + 1} of this branch` }));
+    }
+    tr.append(el("td", {}, this.input(i, k, "length", sec.length, `branch ${i + 1}${name} length (µm)`)));
+    tr.append(el("td", {}, this.input(i, k, "diameter", sec.diameter, `branch ${i + 1}${name} diameter (µm)`)));
+    if (first) {
+      const end = el("select", { className: "cell cell-end", dataset: { b: String(i), s: "0", f: "end" }, ariaLabel: `branch ${i + 1} far end` },
+        ...ENDS.map((e) => option(e, END_LABELS[e], e === b.end)));
+      const G = this.input(i, 0, "G", b.G, `branch ${i + 1} load conductance G (nS)`);
+      const C = this.input(i, 0, "C", b.C, `branch ${i + 1} load capacitance C (pF)`);
+      G.placeholder = "G nS";
+      C.placeholder = "C pF";
+      tr.append(el("td", { className: "end-cell" }, end, el("span", { className: "load" }, G, C), el("span", { className: "not-terminal", textContent: "branch point" })));
+    } else {
+      tr.append(el("td"));
+    }
+    const actions = el("td", { className: "row-actions" });
+    const button = (act, label, title) => el("button", { type: "button", textContent: label, title, ariaLabel: `${title} (branch ${i + 1})`, dataset: { act, b: String(i), s: String(k) } });
+    if (first) {
+      actions.append(button("up", "↑", "move up"), button("down", "↓", "move down"),
+        button("add-section", "+ section", "add a section to this branch (taper)"),
+        button("add-child", "+ child", "add a branch leaving this one"), button("remove", "✕", "remove this branch"));
+    } else {
+      actions.append(button("remove-section", "✕", `remove section ${k + 1}`));
+    }
+    tr.append(actions);
+    return tr;
+  }
+
+  // Parent choices, end cells, synapse choices and the drawing follow the ids and parents.
+  refreshDerived() {
+    const s = this.state;
+    const ids = s.branches.map((b) => b.id);
+    for (const sel of this.table.querySelectorAll("select.cell-parent")) {
+      const i = Number(sel.dataset.b);
+      const current = s.branches[i].parent;
+      const choices = ids.filter((id, j) => j !== i && id !== "");
+      const opts = [option("", "(soma)", current === "")];
+      for (const id of new Set(choices)) opts.push(option(id, id, id === current));
+      if (current !== "" && !choices.includes(current)) opts.push(option(current, `${current} (not in the table)`, true));
+      sel.replaceChildren(...opts);
+      sel.value = current;
+    }
+    for (const tb of this.table.tBodies) {
+      const i = Number(tb.dataset.b);
+      const b = s.branches[i];
+      tb.classList.toggle("terminal", isTerminal(s.branches, i));
+      tb.classList.toggle("load", b.end === "load");
+    }
+    this.fillSynapseChoices();
+    drawSchematic(this.schematic, this.scenarioForDrawing());
+  }
+
+  scenarioForDrawing() {
+    this.readSideSafe();
+    return scenarioFromState(this.state);
+  }
+
+  readSideSafe() {
+    if (this.form.querySelector("#t-syn-branch").options.length) this.readSide();
+  }
+
+  fillSynapseChoices() {
+    const s = this.state;
+    const f = this.form;
+    const ids = [...new Set(s.branches.map((b) => b.id).filter((id) => id !== ""))];
+    const terminals = [...new Set(s.branches.filter((b, i) => b.id !== "" && isTerminal(s.branches, i)).map((b) => b.id))];
+    const fill = (sel, list, current) => {
+      const opts = list.map((id) => option(id, id, id === current));
+      if (current !== "" && !list.includes(current)) opts.push(option(current, `${current} (not in the table)`, true));
+      if (!opts.length) opts.push(option("", "(no branch yet)", true));
+      sel.replaceChildren(...opts);
+      sel.value = current !== "" ? current : (list[0] ?? "");
+    };
+    fill(f.querySelector("#t-syn-branch"), ids, s.synapse.branch);
+    fill(f.querySelector("#t-syn-path"), terminals, s.synapse.path);
+    s.synapse.branch = f.querySelector("#t-syn-branch").value;
+    s.synapse.path = f.querySelector("#t-syn-path").value;
+  }
+
+  // --- editing ---
+  onCellInput(event) {
+    const t = event.target;
+    const { b, s: k, f } = t.dataset;
+    if (f === undefined) return;
+    const branch = this.state.branches[Number(b)];
+    if (f === "length" || f === "diameter") branch.sections[Number(k)][f] = t.value;
+    else if (f === "id") {
+      const old = branch.id;
+      branch.id = t.value;
+      // Children and the synapse follow a renamed branch.
+      for (const other of this.state.branches) if (other !== branch && old !== "" && other.parent === old) other.parent = t.value;
+      if (old !== "" && this.state.synapse.branch === old) this.state.synapse.branch = t.value;
+      if (old !== "" && this.state.synapse.path === old) this.state.synapse.path = t.value;
+      this.refreshDerived();
+    } else {
+      branch[f] = t.value;
+      this.refreshDerived();
+    }
+    if (f === "length" || f === "diameter") drawSchematic(this.schematic, this.scenarioForDrawing());
+  }
+
+  onFormInput(event) {
+    if (event.target.closest?.("#branch-table")) return;
+    if (event.target.name === "t-syn-mode" || event.target.id?.startsWith("t-syn")) {
+      this.readSide();
+      drawSchematic(this.schematic, this.scenarioForDrawing());
+    }
+  }
+
+  onAction(event) {
+    const button = event.target.closest("button[data-act]");
+    if (!button) return;
+    const i = Number(button.dataset.b);
+    const k = Number(button.dataset.s);
+    const list = this.state.branches;
+    this.readSide();
+    const act = button.dataset.act;
+    if (act === "up" && i > 0) [list[i - 1], list[i]] = [list[i], list[i - 1]];
+    else if (act === "down" && i < list.length - 1) [list[i + 1], list[i]] = [list[i], list[i + 1]];
+    else if (act === "add-section") list[i].sections.push({ ...list[i].sections[list[i].sections.length - 1] });
+    else if (act === "remove-section") list[i].sections.splice(k, 1);
+    else if (act === "add-child") list.splice(i + 1, 0, emptyBranch(this.freshId(), list[i].id));
+    else if (act === "remove") list.splice(i, 1);
+    else return;
+    this.render();
+    const focusIndex = act === "up" ? i - 1 : act === "down" ? i + 1 : act === "add-child" ? i + 1 : Math.min(i, list.length - 1);
+    this.table.querySelector(`tbody[data-b="${Math.max(0, focusIndex)}"] button[data-act="${act === "add-child" ? "remove" : act}"]`)?.focus();
+    this.changed();
+  }
+
+  freshId() {
+    const ids = new Set(this.state.branches.map((b) => b.id));
+    let n = this.state.branches.length + 1;
+    while (ids.has(`b${n}`)) n++;
+    return `b${n}`;
+  }
+
+  addBranch() {
+    this.readSide();
+    const last = this.state.branches[this.state.branches.length - 1];
+    this.state.branches.push(emptyBranch(this.freshId(), last ? last.id : ""));
+    this.render();
+    this.table.querySelector(`tbody[data-b="${this.state.branches.length - 1}"] input[data-f=length]`)?.focus();
+    this.changed();
+  }
+
+  // --- spreadsheet rows ---
+  copyText() {
+    return rowsToTSV(this.state.branches);
+  }
+
+  applyRows(text, replace) {
+    let rows;
+    try {
+      rows = rowsFromTSV(text);
+    } catch (err) {
+      this.pasteMsg.textContent = `Not pasted: ${err.message}.`;
+      return false;
+    }
+    this.readSide();
+    this.undo = structuredClone(this.state.branches);
+    this.state.branches = replace ? rows : [...this.state.branches, ...rows];
+    const n = rows.reduce((a, b) => a + b.sections.length, 0);
+    this.pasteMsg.textContent = `${replace ? "Replaced the table with" : "Added"} ${rows.length} branches (${n} rows).`;
+    this.form.ownerDocument.getElementById("paste-undo").hidden = false;
+    this.render();
+    this.changed();
+    return true;
+  }
+
+  pasteFromBox(replace) {
+    const box = this.form.ownerDocument.getElementById("paste-text");
+    if (this.applyRows(box.value, replace)) box.value = "";
+  }
+
+  undoPaste() {
+    if (!this.undo) return;
+    this.state.branches = this.undo;
+    this.undo = null;
+    this.form.ownerDocument.getElementById("paste-undo").hidden = true;
+    this.pasteMsg.textContent = "The table is back as it was before the paste.";
+    this.render();
+    this.changed();
+  }
+
+  // Several cells pasted into the table (tabs or line breaks): they become the table.
+  onPaste(event) {
+    const text = event.clipboardData?.getData("text/plain") ?? "";
+    if (!/[\t\n]/.test(text.trim())) return;
+    event.preventDefault();
+    this.applyRows(text, true);
+  }
+
+  // --- engine messages beside the cell they are about ---
+  clearMessages() {
+    this.message.textContent = "";
+    for (const m of this.form.querySelectorAll(".field-msg")) m.textContent = "";
+    for (const x of this.form.querySelectorAll("[aria-invalid]")) x.removeAttribute("aria-invalid");
+  }
+
+  showMessage(message) {
+    this.clearMessages();
+    const path = message.split(":")[0].trim();
+    const f = this.form;
+    let target = null;
+    let cell = null;
+    const m = /^branches\[(\d+)\](?:\.sections\[(\d+)\])?(?:\.(\w+))?/.exec(path);
+    if (m && f.querySelector(`tbody[data-b="${m[1]}"]`)) {
+      const [i, k, field] = [m[1], m[2] ?? "0", m[3]];
+      target = f.querySelector(`#t-b${i}-msg`);
+      const name = field === "end" && /\.end\.(G|C)/.test(path) ? path.split(".").pop() : field;
+      cell = f.querySelector(`tbody[data-b="${i}"] [data-s="${k}"][data-f="${name ?? "id"}"]`) ||
+        f.querySelector(`tbody[data-b="${i}"] [data-f="id"]`);
+    } else {
+      const side = [
+        [/^synapse\.(distance|branch)$/, "t-syn-distance", "t-syn-branch"],
+        [/^synapse\.(path_distance|path)$/, "t-syn-path_distance", "t-syn-path"],
+        [/^synapse/, "t-syn-distance", null],
+        [/^soma/, "t-soma_diameter", "t-soma_diameter"],
+        [/^membrane\.Rm$/, "t-Rm", "t-Rm"], [/^membrane\.Ri$/, "t-Ri", "t-Ri"], [/^membrane\.Cm$/, "t-Cm", "t-Cm"],
+      ].find(([re]) => re.test(path));
+      if (side) {
+        target = f.querySelector(`#${side[1]}-msg`);
+        const which = /\.(branch|path)$/.test(path) ? side[2] : side[1];
+        cell = which ? f.querySelector(`#${which}`) : null;
+      }
+    }
+    (target || this.message).textContent = message;
+    if (cell) cell.setAttribute("aria-invalid", "true");
+  }
+}
