@@ -11,7 +11,8 @@ import { parseNumber } from "./quick-cable.js";
 const INPUT_ID = "eq-tolerance";
 const MESSAGE_ID = "eq-tolerance-msg";
 const FORM_ID = "quick-cable-form";        // the form whose input and submit events recompute
-const FORM_MESSAGE_ID = "form-message";    // where main.js puts messages it cannot place
+// Where the input modules put a message that names no field of theirs (quick cable, branch table).
+const GENERAL_MESSAGE_IDS = ["form-message", "tree-message"];
 const PATH = "equivalent_cylinder.tolerance";
 
 export function withTolerance(scenario) {
@@ -39,13 +40,13 @@ function wire() {
       form.requestSubmit();
     }
   });
-  const formMessage = document.getElementById(FORM_MESSAGE_ID);
-  if (!formMessage) return;
+  const general = GENERAL_MESSAGE_IDS.map((id) => document.getElementById(id)).filter(Boolean);
   const mirror = () => {
-    const text = formMessage.textContent;
-    showOwnMessage(input, text.startsWith(`${PATH}:`) ? text : "");
+    const mine = general.map((m) => m.textContent).find((text) => text.startsWith(`${PATH}:`));
+    showOwnMessage(input, mine ?? "");
   };
-  new MutationObserver(mirror).observe(formMessage, { childList: true, characterData: true, subtree: true });
+  const watcher = new MutationObserver(mirror);
+  for (const m of general) watcher.observe(m, { childList: true, characterData: true, subtree: true });
 }
 
 wire();

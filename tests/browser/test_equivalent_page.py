@@ -234,6 +234,24 @@ def test_failing_branch_point_is_marked(page, served, artifacts):
     assert lines.count() >= len(set(expected["tree_map"]["branch"])) + 1
     check_numbers(page, expected, at_least=40)
     page.locator("#equivalent").screenshot(path=artifacts / "equivalent-demo-tree-1280.png")
+
+    if len(report["scenario"]["branches"]) > 1 and page.locator("input[name=mode][value=tree]").count():
+        # Through the page's own input: a looser tolerance, above the worst branch point's
+        # departure, clears the marks there (the diameter steps of the taper stay marked when
+        # they depart more).
+        worst = max(abs(r["departure"]) for r in eq["branch_points"])
+        loose = round(worst + 0.05, 2)
+        page.fill("#eq-tolerance", str(loose))
+        page.press("#eq-tolerance", "Enter")
+        wait_result(page)
+        looser = cpython(shown_report(page)["scenario"])["equivalent_cylinder"]
+        assert looser["tolerance"] == loose
+        assert page.locator("#eq-branch-points tbody tr[data-ok=false]").count() == 0
+        assert page.locator("#eq-section-joins tbody tr[data-ok=false]").count() == \
+            sum(abs(r["departure"]) > loose for r in eq["section_joins"])
+        assert page.get_attribute("#eq-verdict", "data-verdict") == \
+            ("met" if looser["meets_conditions"] else "not-met")
+        check_numbers(page, cpython(shown_report(page)["scenario"]), at_least=40)
     assert page.log.errors == []
 
 
