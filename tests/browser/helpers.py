@@ -17,9 +17,11 @@ FREQUENCIES_HZ = [
 BOOT_TIMEOUT_MS = 120_000
 
 
-def quick_scenario(distance, length, diameter, soma_diameter, end, Rm, Ri, Cm) -> dict:
-    """The scenario the quick-cable form stands for (DEVELOPERS.md, 'The scenario')."""
-    return {
+def quick_scenario(distance, length, diameter, soma_diameter, end, Rm, Ri, Cm,
+                   eq_tolerance=None) -> dict:
+    """The scenario the quick-cable form stands for (DEVELOPERS.md, 'The scenario');
+    ``eq_tolerance``: the equivalent-cylinder section's tolerance field, when it is filled."""
+    scenario = {
         "membrane": {"Rm": Rm, "Ri": Ri, "Cm": Cm},
         "soma": None if soma_diameter is None else {"diameter": soma_diameter},
         "branches": [{"id": "dendrite", "parent": None, "length": length,
@@ -27,6 +29,17 @@ def quick_scenario(distance, length, diameter, soma_diameter, end, Rm, Ri, Cm) -
         "synapse": {"branch": "dendrite", "distance": distance},
         "frequencies_hz": FREQUENCIES_HZ,
     }
+    if eq_tolerance is not None:
+        scenario["equivalent_cylinder"] = {"tolerance": eq_tolerance}
+    return scenario
+
+
+def page_eq_tolerance(page):
+    """The equivalent-cylinder tolerance the page will send (its field), or None."""
+    field = page.locator("#eq-tolerance")
+    if field.count() == 0 or not field.input_value().strip():
+        return None
+    return float(field.input_value())
 
 
 def differences(a, b, path="report", rel=1e-12, abs_tol=1e-12) -> list[str]:

@@ -13,8 +13,8 @@ import json
 import pytest
 
 import somaward
-from helpers import (differences, open_page, quick_scenario, report_value, rounded_ok,
-                     shown_report, submit, wait_result, BOOT_TIMEOUT_MS)
+from helpers import (differences, open_page, page_eq_tolerance, quick_scenario, report_value,
+                     rounded_ok, shown_report, submit, wait_result, BOOT_TIMEOUT_MS)
 
 pytestmark = pytest.mark.browser
 
@@ -49,7 +49,8 @@ def test_typed_values_give_cpythons_report(page, served, artifacts):
     report = shown_report(page)
 
     mine = quick_scenario(distance=175, length=450, diameter=1.25, soma_diameter=16,
-                          end="killed", Rm=32000, Ri=110, Cm=0.85)
+                          end="killed", Rm=32000, Ri=110, Cm=0.85,
+                          eq_tolerance=page_eq_tolerance(page))
     expected = json.loads(json.dumps(somaward.solve(mine)))
     assert differences(report, expected) == []
 
@@ -119,7 +120,8 @@ def test_engine_warnings_are_shown(page, served):
     wait_result(page)
     expected = somaward.solve(quick_scenario(distance=300, length=600, diameter=2,
                                              soma_diameter=200, end="sealed",
-                                             Rm=20000, Ri=150, Cm=1))["warnings"]
+                                             Rm=20000, Ri=150, Cm=1,
+                                             eq_tolerance=page_eq_tolerance(page)))["warnings"]
     assert expected, "this scenario should warn about the soma"
     assert page.locator("#warnings li").all_text_contents() == expected
     # No soma at all: an empty field.
