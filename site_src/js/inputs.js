@@ -31,8 +31,10 @@ function quickAdapter(form) {
 }
 
 export class Inputs {
-  constructor(client, { compute }) {
+  // decorate(scenario): what main.js adds to every scenario it solves (other sections' fields).
+  constructor(client, { compute, decorate = (s) => s }) {
     this.client = client;
+    this.decorate = decorate;
     this.compute = compute;
     this.quick = quickAdapter($("#quick-cable-form"));
     this.tree = new TreeTable($("#tree-table"));
@@ -62,7 +64,12 @@ export class Inputs {
   }
 
   snapshot() {
-    return { mode: this.mode, scenario: this.current().scenario() };
+    return { mode: this.mode, scenario: this.scenario() };
+  }
+
+  // The scenario the page solves for the current inputs.
+  scenario() {
+    return this.decorate(this.current().scenario());
   }
 
   apply(snapshot) {
@@ -175,7 +182,7 @@ export class Inputs {
       this.status(`${how === "manual" ? "Link ready to copy" : "Link copied"} (${location.href.length} characters); it reopens exactly these inputs.`);
     });
     $("#export-json").addEventListener("click", () => {
-      keep.downloadJSON(this.current().scenario(), "somaward-scenario.json");
+      keep.downloadJSON(this.scenario(), "somaward-scenario.json");
     });
     $("#import-json").addEventListener("change", (event) => {
       const file = event.target.files[0];

@@ -100,7 +100,7 @@ function askBackground() {
 async function recompute() {
   const mine = ++latest;
   const input = inputs.current();
-  const scenario = withTolerance(input.scenario());
+  const scenario = inputs.scenario();
   body.dataset.tSent = performance.now().toFixed(2);
   body.dataset.input = "pending";
   try {
@@ -167,7 +167,7 @@ function start() {
         "The connection may be slow, or the browser blocked WebAssembly.");
     }
   }, config.bootTimeoutMs);
-  inputs = new Inputs(client, { compute: () => { clearTimeout(timer); recompute(); } });
+  inputs = new Inputs(client, { compute: () => { clearTimeout(timer); recompute(); }, decorate: withTolerance });
   for (const form of inputs.forms) {
     form.addEventListener("input", onInput);
     form.addEventListener("submit", (event) => {

@@ -38,7 +38,7 @@ export function renderPaper(root, report, ctx) {
   const mine = ++asked;
   setReady(root, false);
   if (!ctx?.client) return;
-  ctx.client.call("paper", report).then(({ value }) => {
+  ctx.client.call("paper", ctx.json || report).then(({ value }) => {
     if (mine === asked) showTexts(root, value);
   }, (err) => {
     if (mine === asked) root.querySelector("#paper-copied").textContent = `The paper texts could not be made: ${err.message}`;

@@ -16,11 +16,15 @@ import somaward
 from somaward import export
 
 
-def paper(report: dict) -> dict:
+def paper(report: dict | str) -> dict:
     """Every text the page copies into a paper, made by ``somaward.export`` from one report:
     the results table and the 3/2-rule table in each format, the methods paragraph (the
     "## Methods" part of ``render(report, "md")``, as ``somaward report --format md`` prints it)
     and the stamp (engine version and scenario fingerprint) carried by every block."""
+    if isinstance(report, str):
+        # The report's own JSON text: a JavaScript round trip would turn 4.0 into 4 and change
+        # the scenario fingerprint.
+        report = json.loads(report)
     fmts = ("tsv", "md", "latex", "csv")
     md = export.render(report, "md")
     methods = md.split("## Methods\n\n", 1)[1] if "## Methods\n\n" in md else export.methods_text(report)
