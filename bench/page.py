@@ -11,7 +11,10 @@ measuring time from navigation start to the first result (page) or to numpy impo
 and the bytes transferred. Then, on a warm page, the recompute latency of the quick-cable form
 from the input event to the DOM update, minus the debounce, median of ``--recomputes``.
 Prints a table of medians and ratios to the bare boot; asserts nothing.
-Targets (issue 3): first result ≤ 1.25 × bare boot; recompute ≤ 1/100 of the bare boot.
+Then the same for the branch table holding a 10³-section tree (opened as a scenario file),
+the synapse distance typed (issue 4).
+Targets (issue 3): first result ≤ 1.25 × bare boot; recompute ≤ 1/100 of the bare boot;
+(issue 4) tree recompute ≤ 1/25 of the bare boot.
 """
 from __future__ import annotations
 
@@ -129,6 +132,43 @@ def recompute_latencies(browser, base: str, n: int) -> tuple[list[float], list[f
         ctx.close()
 
 
+def big_tree(n_sections: int = 1000) -> dict:
+    """An invented tree of n_sections/2 branches of two sections each (a binary tree)."""
+    branches = []
+    for i in range(n_sections // 2):
+        parent = None if i == 0 else f"b{(i - 1) // 2}"
+        branches.append({"id": f"b{i}", "parent": parent,
+                         "sections": [{"length": 30 + i % 17, "diameter": 2.0 / (1 + i % 5) + 0.3},
+                                      {"length": 20 + i % 11, "diameter": 1.5 / (1 + i % 5) + 0.2}]})
+    return {"membrane": {"Rm": 20000, "Ri": 150, "Cm": 1.0}, "soma": {"diameter": 20},
+            "branches": branches, "synapse": {"branch": f"b{len(branches) - 1}", "distance": 10}}
+
+
+def tree_latencies(browser, base: str, n: int, tmp: Path) -> list[float]:
+    import json
+
+    path = tmp / "big-tree.json"
+    path.write_text(json.dumps(big_tree()))
+    ctx = browser.new_context()
+    try:
+        page = ctx.new_page()
+        load(page, base + "index.html", "body[data-results=fresh]", "data-t-first-result")
+        page.wait_for_selector("body[data-scipy]", state="attached", timeout=TIMEOUT_MS)
+        page.set_input_files("#import-json", str(path))
+        page.wait_for_selector("body[data-imported=ok]", state="attached", timeout=TIMEOUT_MS)
+        page.wait_for_selector("body[data-results=fresh][data-input=valid]", state="attached", timeout=TIMEOUT_MS)
+        page.check("input[name=t-syn-mode][value=branch]")
+        out = []
+        for i in range(n):
+            page.fill("#t-syn-distance", str(5 + (i % 10)))
+            page.wait_for_selector("body[data-results=fresh][data-input=valid]", state="attached", timeout=60_000)
+            t = {k: float(page.get_attribute("body", f"data-t-{k}")) for k in ("input", "shown")}
+            out.append(t["shown"] - t["input"] - DEBOUNCE_MS)
+        return out
+    finally:
+        ctx.close()
+
+
 def run(site: Path, runs: int, recomputes: int) -> None:
     from playwright.sync_api import sync_playwright
 
@@ -150,9 +190,16 @@ def run(site: Path, runs: int, recomputes: int) -> None:
                 f"{k} cold {results[k]['cold'][-1]:.0f} ms warm {results[k]['warm'][-1]:.0f} ms"
                 for k in PAGES), flush=True)
         lat_input, lat_send = recompute_latencies(browser, base, recomputes)
+        lat_tree = tree_latencies(browser, base, recomputes, site)
         browser.close()
     server.shutdown()
     report(results, lat_input, lat_send, runs, recomputes)
+    lt = statistics.median(lat_tree)
+    b = {m: statistics.median(results["bare"][m]) for m in ("cold", "warm")}
+    print(f"{f'tree of 10³ sections: recompute, input→DOM − debounce, ms (n={recomputes})':44} {lt:12.1f} "
+          f"{'':12} {lt / b['warm']:8.4f}  (÷ bare warm boot)")
+    print(f"{'  same, ÷ bare cold boot':44} {'':12} {'':12} {lt / b['cold']:8.4f}")
+    print("target (issue 4): tree recompute ≤ 0.04 × bare boot")
 
 
 def report(results, lat_input, lat_send, runs, recomputes) -> None:

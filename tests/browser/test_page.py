@@ -220,8 +220,14 @@ def test_tablet_width_and_keyboard(browser, served, artifacts):
         open_page(page, served.url)
         width = page.evaluate("() => document.documentElement.scrollWidth")
         assert width <= 768
-        # The first Tab reaches the first field; its label is tied to it.
+        # The first Tab reaches the input switch (one dendrite / branch table), the keeping-work
+        # buttons follow, then the first field; its label is tied to it.
         page.keyboard.press("Tab")
+        assert page.evaluate("() => document.activeElement.name") == "mode"
+        for _ in range(6):
+            if page.evaluate("() => document.activeElement.id") == "f-distance":
+                break
+            page.keyboard.press("Tab")
         assert page.evaluate("() => document.activeElement.id") == "f-distance"
         assert page.locator("label[for=f-distance]").count() == 1
         page.keyboard.press("Control+A")
