@@ -73,3 +73,12 @@ def test_methods_states_defaults(report):
                                     (2.5e-7, "2.5e-7")])
 def test_format_value(x, text):
     assert format_value(x) == text
+
+
+def test_fingerprint_ignores_how_numbers_are_written(report):
+    """4 and 4.0 are one JSON number (RFC 8259 §6): a scenario re-saved by another writer keeps
+    its fingerprint."""
+    import json
+
+    as_floats = json.loads(json.dumps(report["scenario"]), parse_int=float)
+    assert fingerprint(as_floats) == fingerprint(report["scenario"])

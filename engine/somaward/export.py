@@ -13,15 +13,30 @@ import json
 
 from .equivalent import comparison_rows, methods_sentence, rule_table_rows
 
-__all__ = ["fingerprint", "results_rows", "format_value", "table", "rule_table", "methods_text", "render",
+__all__ = ["fingerprint", "stamp", "results_rows", "format_value", "table", "rule_table", "methods_text", "render",
            "latex_escape", "FORMATS"]
 
 FORMATS = ("json", "md", "tsv", "csv", "latex")
 
 
+def _canonical(value):
+    """Numbers as written by any JSON writer: 4.0 and 4 (and −0.0 and 0) are the same number."""
+    if isinstance(value, dict):
+        return {k: _canonical(v) for k, v in value.items()}
+    if isinstance(value, list):
+        return [_canonical(v) for v in value]
+    if isinstance(value, float) and value.is_integer():
+        return int(value)
+    return value
+
+
 def fingerprint(scenario):
-    """12 hex digits of SHA-256 over the canonical JSON (sorted keys, no spaces) of a scenario."""
-    text = json.dumps(scenario, sort_keys=True, separators=(",", ":"), ensure_ascii=False)
+    """12 hex digits of SHA-256 over the canonical JSON of a scenario.
+
+    Canonical: sorted keys, no spaces, and integral numbers written as integers, so that the same
+    cell gives the same fingerprint whether a program wrote 4 or 4.0.
+    """
+    text = json.dumps(_canonical(scenario), sort_keys=True, separators=(",", ":"), ensure_ascii=False)
     return hashlib.sha256(text.encode("utf-8")).hexdigest()[:12]
 
 
@@ -71,7 +86,8 @@ def results_rows(report):
     return rows
 
 
-def _stamp(report):
+def stamp(report):
+    """'Somaward <version>, scenario <fingerprint>': the line every exported block carries."""
     return f"Somaward {report['engine_version']}, scenario {fingerprint(report['scenario'])}"
 
 
@@ -103,14 +119,14 @@ def _render_table(header, rows, fmt, stamp):
 
 def table(report, fmt):
     """The results table as ``md``, ``tsv``, ``csv`` or ``latex`` text, with its stamp."""
-    return _render_table(("Quantity", "Value", "Unit"), _display_rows(report), fmt, _stamp(report))
+    return _render_table(("Quantity", "Value", "Unit"), _display_rows(report), fmt, stamp(report))
 
 
 def rule_table(report, fmt):
     """The 3/2-rule table, one row per branch point and diameter step (Rall 1962), with its stamp."""
     header, rows = rule_table_rows(report)
     shown = [[format_value(c) if not isinstance(c, str) else c for c in r] for r in rows]
-    return _render_table(tuple(header), shown, fmt, _stamp(report))
+    return _render_table(tuple(header), shown, fmt, stamp(report))
 
 
 def _md_cell(text):
@@ -160,7 +176,7 @@ def methods_text(report):
     cur = sc["synapse"].get("current", {})
     paragraph = (
         f"Attenuation between the synapse and the soma was estimated with a passive cable model "
-        f"({_stamp(report)}). The dendrites were {len(sc['branches'])} branches made of {n_sections} "
+        f"({stamp(report)}). The dendrites were {len(sc['branches'])} branches made of {n_sections} "
         f"uniform cylindrical sections with specific membrane resistance Rm = {mem['Rm']:g} Ω·cm², axial "
         f"resistivity Ri = {mem['Ri']:g} Ω·cm and specific membrane capacitance Cm = {mem['Cm']:g} µF/cm²"
         f"{_defaulted(report, 'membrane.Cm')}, uniform over the tree, so that τm = Rm·Cm = "

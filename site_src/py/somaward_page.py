@@ -26,12 +26,11 @@ def paper(report: dict | str) -> dict:
         # the scenario fingerprint.
         report = json.loads(report)
     fmts = ("tsv", "md", "latex", "csv")
-    md = export.render(report, "md")
-    methods = md.split("## Methods\n\n", 1)[1] if "## Methods\n\n" in md else export.methods_text(report)
+    methods = export.methods_text(report)        # render(report, "md") ends with exactly this text
     return {"table": {f: export.table(report, f) for f in fmts},
             "rule_table": {f: export.rule_table(report, f) for f in fmts},
             "methods": methods,
-            "stamp": f"Somaward {report['engine_version']}, scenario {export.fingerprint(report['scenario'])}"}
+            "stamp": export.stamp(report)}
 
 
 # Engine functions the page may call (name → function); later sections add theirs here.
