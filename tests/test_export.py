@@ -82,3 +82,10 @@ def test_fingerprint_ignores_how_numbers_are_written(report):
 
     as_floats = json.loads(json.dumps(report["scenario"]), parse_int=float)
     assert fingerprint(as_floats) == fingerprint(report["scenario"])
+
+
+def test_md_report_ends_with_the_methods_text(report):
+    """The page copies methods_text(); the CLI's md report must end with the same words."""
+    from somaward.export import render
+
+    assert render(report, "md").endswith(methods_text(report))

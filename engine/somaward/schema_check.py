@@ -62,6 +62,10 @@ def did_you_mean(word, choices):
     return f"; did you mean {describe(close[0])}?" if close else ""
 
 
+_PY_TYPES = {"object": (dict,), "array": (list,), "string": (str,), "number": (int, float),
+             "null": (type(None),), "boolean": (bool,)}
+
+
 def _is_type(value, name):
     if name == "number":
         return isinstance(value, (int, float)) and not isinstance(value, bool)
@@ -88,6 +92,7 @@ class _Checker:
     def __init__(self, schema):
         self.root = schema
         self._resolved = {}
+        self._py_types = {}      # id(node) -> (Python types, booleans allowed)
 
     def resolve(self, node):
         """The node with its local ``$ref`` followed (cached: the schema does not change)."""
@@ -134,9 +139,13 @@ class _Checker:
         types = node.get("type")
         if types is None:
             return
-        types = [types] if isinstance(types, str) else types
-        if not any(_is_type(value, t) for t in types):
-            words = " or ".join(_TYPE_WORDS[t] for t in types)
+        py = self._py_types.get(id(node))
+        if py is None:
+            names = [types] if isinstance(types, str) else types
+            py = self._py_types[id(node)] = (tuple(t for n in names for t in _PY_TYPES[n]), "boolean" in names)
+        if not isinstance(value, py[0]) or (isinstance(value, bool) and not py[1]):
+            names = [types] if isinstance(types, str) else types
+            words = " or ".join(_TYPE_WORDS[t] for t in names)
             unit_words = f" ({unit})" if unit else ""
             raise ScenarioError(path, f"must be {words}{unit_words}, got {describe(value)}")
 
