@@ -260,7 +260,7 @@ def cylinder_scenario(tree, scenario, terminals):
             "lambda_um": lam, "length_um": length_um, "electrotonic_length": terminals["L"]}
 
 
-def compare_logs(tree, cyl_tree, sec, y_um, s):
+def compare_logs(tree, cyl_tree, sec, y_um, s, sol=None):
     """Complex logs at one site of the full tree and at the same X on the cylinder.
 
     Parameters
@@ -271,6 +271,8 @@ def compare_logs(tree, cyl_tree, sec, y_um, s):
         The site: section of ``tree`` and distance (µm) from its proximal end.
     s : array_like
         Laplace variables (1/ms).
+    sol : TreeSolution, optional
+        ``solve_tree(tree, s)`` if the caller has it already.
 
     Returns
     -------
@@ -280,7 +282,7 @@ def compare_logs(tree, cyl_tree, sec, y_um, s):
         ``tree_ln_z_site`` (full tree only: the cylinder does not give them).
     """
     s = np.atleast_1d(np.asarray(s))
-    sol = solve_tree(tree, s)
+    sol = solve_tree(tree, s) if sol is None else sol      # a solution of ``tree`` at these s
     t = point_terms(sol, [sec], [y_um])
     ln_y_site = np.log(t["y_node"][0])
     out = {"tree_down": t["down"][0], "tree_up": t["up"][0], "tree_ln_z_site": -ln_y_site,
@@ -320,8 +322,9 @@ NOT_GIVEN = ("A point on the equivalent cylinder stands for input spread over ev
              "its site→soma attenuation; the values here are the full tree's.")
 
 
-def _comparison(tree, cyl_tree, sec, y_um):
-    logs = {k: (v[0] if v is not None else None) for k, v in compare_logs(tree, cyl_tree, sec, y_um, [0.0]).items()}
+def _comparison(tree, cyl_tree, sec, y_um, sol_dc=None):
+    logs = compare_logs(tree, cyl_tree, sec, y_um, [0.0], sol_dc)
+    logs = {k: (v[0] if v is not None else None) for k, v in logs.items()}
     x_site = float(tree.x_start[sec] + y_um / tree.lambda_um[sec])
     beyond = logs["cyl_down"] is None
     return {
@@ -388,7 +391,7 @@ def cylinder_curve(cyl_tree, n_points=51):
             "soma_to_site": [float(v) for v in a]}
 
 
-def equivalent_cylinder(tree, scenario, sec, y_um):
+def equivalent_cylinder(tree, scenario, sec, y_um, sol_dc=None):
     """The ``equivalent_cylinder`` block of the report (keys in DEVELOPERS.md).
 
     Parameters
@@ -399,6 +402,8 @@ def equivalent_cylinder(tree, scenario, sec, y_um):
         The validated scenario; ``equivalent_cylinder.tolerance`` (default 0.05) is read from it.
     sec, y_um : int, float
         The synapse: section of ``tree`` and distance (µm) from the section's proximal end.
+    sol_dc : TreeSolution, optional
+        The steady-state solution of ``tree`` (``solve_tree(tree, [0.0])``), if already computed.
     """
     tol = float(scenario.get("equivalent_cylinder", {}).get("tolerance", DEFAULT_TOLERANCE))
     points, joins = branch_point_rows(tree, tol), section_join_rows(tree, tol)
@@ -430,7 +435,7 @@ def equivalent_cylinder(tree, scenario, sec, y_um):
                                                                  range(len(tree.branch_ids)) if tree.branch_parent[b] < 0],
                      "length_rule": LENGTH_RULE, "taper_rule": TAPER_RULE,
                      "curve": cylinder_curve(cyl_tree)},
-        "comparison": _comparison(tree, cyl_tree, sec, y_um),
+        "comparison": _comparison(tree, cyl_tree, sec, y_um, sol_dc),
     }
 
 

@@ -215,7 +215,7 @@ def solve(scenario):
         "centroid_delay_soma_to_site_ms": _num(centroid[1]),
         "path_profile": _path_profile(tree, sol_dc, sec, y, sc["map_spacing_um"]),
         "tree_map": _tree_map(tree, sc, sol_dc),
-        "equivalent_cylinder": equivalent_cylinder(tree, sc, sec, y),
+        "equivalent_cylinder": equivalent_cylinder(tree, sc, sec, y, sol_dc),
     }
     report["warnings"] = warnings
     report["scenario"] = sc
