@@ -334,7 +334,7 @@ function plotFigure(report, eq) {
 }
 
 // Drawn once the figure is in the page, so that its width is known.
-function drawPlot(holder, report, eq) {
+function drawPlot(holder, report, eq, available) {
   const curve = eq.cylinder.curve;
   const cmp = eq.comparison;
   const syn = [{ x: cmp.electrotonic_distance, y: cmp.soma_to_site.tree, label: "synapse", symbol: "circle" }];
@@ -346,7 +346,7 @@ function drawPlot(holder, report, eq) {
   // The y axis starts at the tenth below the lowest value drawn, so that the gap between tree and
   // cylinder can be seen; it always ends at 1.
   const lowest = Math.min(1, ...tree.map((d) => d.y), ...cyl.map((d) => d.y), ...syn.map((d) => d.y));
-  const w = Math.max(280, Math.min(720, holder.clientWidth || 560));
+  const w = Math.max(280, Math.min(720, available || holder.clientWidth || 560));
   const svg = Plot.plot({
     width: w,
     height: Math.round(w * 0.6),
@@ -379,6 +379,9 @@ export function renderEquivalent(container, report) {
   }
   const used = document.getElementById("eq-tolerance-used");
   if (used) used.textContent = `in use: ${eq.tolerance}`;
+  // The plot's width from the one drawn before, read before the tables are replaced (reading it
+  // after would lay out the whole page again).
+  const available = container.querySelector("#eq-plot .plot")?.clientWidth || 0;
   const fig = plotFigure(report, eq);
   const synapse = el("div", [el("h3", "At your synapse"), ...comparisonTable(eq), notGiven(eq)], "eq-cell");
   const rules = el("div", [branchPointTable(eq)], "eq-cell eq-wide");
@@ -389,7 +392,7 @@ export function renderEquivalent(container, report) {
     el("div", fig, "eq-cell"), cylinder], "eq-grid"));
   const holder = fig.querySelector(".plot");
   try {
-    drawPlot(holder, report, eq);
+    drawPlot(holder, report, eq, available);
   } catch (err) {
     holder.textContent = `The plot could not be drawn: ${err.message}`;
   }

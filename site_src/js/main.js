@@ -2,7 +2,8 @@
 // body[data-state] = loading | ready | error; body[data-results] = none | fresh | stale;
 // body[data-input] = pending | valid | invalid (the newest request's fate).
 // Timings (performance.now(), ms) are left on body for bench/page.py:
-// data-t-first-result, data-t-input, data-t-sent, data-t-shown.
+// data-t-first-result, data-t-input, data-t-sent, data-t-shown (the views on screen drawn),
+// data-t-drawn (every view drawn; see VIEWS).
 import { EngineClient } from "./worker-client.js";
 import { Inputs } from "./inputs.js";  // quick cable or branch table; autosave, links, files
 import { withTolerance } from "./equivalent-input.js";  // equivalent_cylinder.tolerance (section "equivalent")
@@ -24,22 +25,76 @@ let lastJSON = "";
 // Views of the report: each section that draws it names its module, the module's render
 // function and its element. They load while Python boots (the charting code is the largest
 // script) and redraw on every result. A new section adds one line here.
+// A view marked lazy whose element is off screen is drawn when the page is idle (or when it
+// scrolls into view), so that a big tree's tables and plots do not hold up the part the person
+// is looking at; body[data-views] = pending | drawn says whether every view shows the newest
+// report (and data-t-drawn when they all do). "after" views run again once the lazy ones are in.
 const VIEWS = [
   { module: "./results.js", render: "renderResults", target: "#results-body" },
-  { module: "./charts.js", render: "renderPlots", target: "#plots" },
-  { module: "./equivalent.js", render: "renderEquivalent", target: "#equivalent-body" },
-  { module: "./tree-map.js", render: "renderTreeMap", target: "#tree-map" },
+  { module: "./charts.js", render: "renderPlots", target: "#plots", lazy: true },
+  { module: "./equivalent.js", render: "renderEquivalent", target: "#equivalent-body", lazy: true },
+  { module: "./tree-map.js", render: "renderTreeMap", target: "#tree-map", lazy: true },
   { module: "./paper.js", render: "renderPaper", target: "#paper", init: "initPaper" },
-  { module: "./figures.js", render: "addFigureButtons", target: "#sections" },
+  { module: "./figures.js", render: "addFigureButtons", target: "#sections", after: true },
 ];
+const onScreen = new Map();   // view element → is it (nearly) in the viewport?
+const deferred = new Set();   // lazy views not yet drawn for the newest report
+let idleHandle = 0;
+const observer = typeof IntersectionObserver === "function" ? new IntersectionObserver((entries) => {
+  for (const entry of entries) {
+    onScreen.set(entry.target, entry.isIntersecting);
+    if (!entry.isIntersecting) continue;
+    const view = [...deferred].find((v) => document.querySelector(v.target) === entry.target);
+    if (view) drawDeferred(view);
+  }
+}, { rootMargin: "300px" }) : null;
+const idle = (fn) => (typeof requestIdleCallback === "function" ? requestIdleCallback(fn, { timeout: 1500 }) : setTimeout(fn, 50));
+const cancelIdle = (h) => (typeof cancelIdleCallback === "function" ? cancelIdleCallback(h) : clearTimeout(h));
+
+function drawDeferred(view) {
+  deferred.delete(view);
+  if (lastReport && view.fn) draw(view, lastReport);
+  if (deferred.size) return;
+  cancelIdle(idleHandle);
+  for (const v of VIEWS) if (v.after && v.fn && lastReport) draw(v, lastReport);
+  body.dataset.views = "drawn";
+  body.dataset.tDrawn = performance.now().toFixed(2);
+}
+
+function drawNextDeferred() {
+  idleHandle = 0;
+  const next = deferred.values().next().value;
+  if (next) drawDeferred(next);
+  if (deferred.size) idleHandle = idle(drawNextDeferred);
+}
+
+function drawAll(report) {
+  cancelIdle(idleHandle);
+  deferred.clear();
+  for (const view of VIEWS) {
+    if (!view.fn) continue;
+    const el = document.querySelector(view.target);
+    if (view.lazy && el && onScreen.get(el) === false) deferred.add(view);
+    else draw(view, report);
+  }
+  if (deferred.size) {
+    body.dataset.views = "pending";
+    idleHandle = idle(drawNextDeferred);
+  } else {
+    body.dataset.views = "drawn";
+    body.dataset.tDrawn = performance.now().toFixed(2);
+  }
+}
 
 function draw(view, report) {
   const el = document.querySelector(view.target);
+  const t0 = performance.now();
   try {
     view.fn(el, report, { client, json: lastJSON });
   } catch (err) {
     el.textContent = `This part could not be drawn: ${err.message}`;
   }
+  performance.measure(`view ${view.module}`, { start: t0 });
 }
 
 function loadViews() {
@@ -47,6 +102,7 @@ function loadViews() {
     import(view.module).then((mod) => {
       view.fn = mod[view.render];
       if (view.init) mod[view.init](document.querySelector(view.target));
+      if (view.lazy && observer) observer.observe(document.querySelector(view.target));
       if (lastReport) draw(view, lastReport);
     }, (err) => {
       document.querySelector(view.target).textContent = `Not available: ${err.message}`;
@@ -78,8 +134,8 @@ function markStale() {
 function show(report, json) {
   lastReport = report;
   lastJSON = json;
-  for (const view of VIEWS) if (view.fn) draw(view, report);
   reportHolder.textContent = json;
+  drawAll(report);
   body.dataset.results = "fresh";
   body.dataset.tShown = performance.now().toFixed(2);
   if (!haveResult) {
@@ -104,7 +160,9 @@ async function recompute() {
   body.dataset.tSent = performance.now().toFixed(2);
   body.dataset.input = "pending";
   try {
+    const t0 = performance.now();
     const { value, json } = await client.call("solve", scenario);
+    performance.measure("solve round trip", { start: t0 });
     if (mine !== latest) return;
     input.clearMessages();
     body.dataset.input = "valid";

@@ -1,5 +1,5 @@
 // The "Into the paper" section: the engine's own tables (TSV, Markdown, LaTeX, CSV) and
-// methods paragraph for the shown report, fetched from the worker once per result, copied
+// methods paragraph for the shown report, fetched from the worker once per result (when idle), copied
 // on a click. The text is the engine's (somaward.export); nothing is formatted here.
 import { copyText, initClipboard } from "./clipboard.js";
 
@@ -34,15 +34,43 @@ function showTexts(root, value) {
   setReady(root, true);
 }
 
-export function renderPaper(root, report, ctx) {
-  const mine = ++asked;
-  setReady(root, false);
-  if (!ctx?.client) return;
+// The texts take the worker a while for a big tree, and the worker answers one request at a
+// time, so they are asked for only once the inputs have been still for a moment and the page is
+// idle: a person typing never waits behind texts for a report already replaced. The report goes
+// across as its own JSON text, so nothing is solved again.
+const PAPER_QUIET_MS = 700;
+let pending = null;
+
+function cancelPending() {
+  if (!pending) return;
+  clearTimeout(pending.timer);
+  if (pending.idle && globalThis.cancelIdleCallback) cancelIdleCallback(pending.idle);
+  pending = null;
+}
+
+function fetchTexts(root, report, ctx, mine) {
   ctx.client.call("paper", ctx.json || report).then(({ value }) => {
     if (mine === asked) showTexts(root, value);
   }, (err) => {
     if (mine === asked) root.querySelector("#paper-copied").textContent = `The paper texts could not be made: ${err.message}`;
   });
+}
+
+export function renderPaper(root, report, ctx) {
+  const mine = ++asked;
+  setReady(root, false);
+  cancelPending();
+  if (!ctx?.client) return;
+  const job = { timer: 0, idle: 0 };
+  pending = job;
+  job.timer = setTimeout(() => {
+    const go = () => {
+      if (pending === job) pending = null;
+      if (mine === asked) fetchTexts(root, report, ctx, mine);
+    };
+    if (globalThis.requestIdleCallback) job.idle = requestIdleCallback(go, { timeout: 1000 });
+    else go();
+  }, PAPER_QUIET_MS);
 }
 
 function textFor(button) {

@@ -4,6 +4,7 @@
 import { emptyBranch, ENDS, isTerminal, rowsFromTSV, rowsToTSV, scenarioFromState, stateFromScenario } from "./branch-rows.js";
 import { drawSchematic } from "./schematic.js";
 
+const EAGER_PARENT_LISTS = 60;  // branches; above this a parent list is filled when reached
 const END_LABELS = { sealed: "sealed", killed: "killed", infinite: "goes on for ever", load: "lumped load G, C" };
 
 function el(tag, props = {}, ...children) {
@@ -36,6 +37,7 @@ export class TreeTable {
     this.table.addEventListener("input", (e) => this.onCellInput(e));
     this.table.addEventListener("click", (e) => this.onAction(e));
     this.table.addEventListener("paste", (e) => this.onPaste(e));
+    for (const kind of ["focusin", "pointerdown", "mousedown", "keydown"]) this.table.addEventListener(kind, (e) => this.onParentReached(e), true);
     root.querySelector("#add-branch").addEventListener("click", () => this.addBranch());
     root.querySelector("#paste-replace").addEventListener("click", () => this.pasteFromBox(true));
     root.querySelector("#paste-append").addEventListener("click", () => this.pasteFromBox(false));
@@ -147,18 +149,15 @@ export class TreeTable {
   }
 
   // Parent choices, end cells, synapse choices and the drawing follow the ids and parents.
+  // In a big table every parent list would hold every id (n² options, which makes each
+  // layout of the page slow), so there a list holds only its current choice until the person
+  // reaches it (focus or pointer), when fillParentChoices gives it every id.
   refreshDerived() {
     const s = this.state;
-    const ids = s.branches.map((b) => b.id);
+    const lazy = s.branches.length > EAGER_PARENT_LISTS;
     for (const sel of this.table.querySelectorAll("select.cell-parent")) {
-      const i = Number(sel.dataset.b);
-      const current = s.branches[i].parent;
-      const choices = ids.filter((id, j) => j !== i && id !== "");
-      const opts = [option("", "(soma)", current === "")];
-      for (const id of new Set(choices)) opts.push(option(id, id, id === current));
-      if (current !== "" && !choices.includes(current)) opts.push(option(current, `${current} (not in the table)`, true));
-      sel.replaceChildren(...opts);
-      sel.value = current;
+      if (lazy && sel !== document.activeElement) this.fillParentChoices(sel, true);
+      else this.fillParentChoices(sel, false);
     }
     for (const tb of this.table.tBodies) {
       const i = Number(tb.dataset.b);
@@ -168,6 +167,26 @@ export class TreeTable {
     }
     this.fillSynapseChoices();
     drawSchematic(this.schematic, this.scenarioForDrawing());
+  }
+
+  fillParentChoices(sel, onlyCurrent) {
+    const s = this.state;
+    const i = Number(sel.dataset.b);
+    const current = s.branches[i].parent;
+    const choices = onlyCurrent ? (current === "" ? [] : [current])
+      : s.branches.map((b) => b.id).filter((id, j) => j !== i && id !== "");
+    const known = onlyCurrent ? s.branches.some((b, j) => j !== i && b.id === current) : choices.includes(current);
+    const opts = [option("", "(soma)", current === "")];
+    for (const id of new Set(choices)) if (id !== current || known) opts.push(option(id, id, id === current));
+    if (current !== "" && !known) opts.push(option(current, `${current} (not in the table)`, true));
+    sel.replaceChildren(...opts);
+    sel.value = current;
+    sel.dataset.choices = onlyCurrent ? "current" : "all";
+  }
+
+  onParentReached(event) {
+    const sel = event.target.closest?.("select.cell-parent");
+    if (sel && sel.dataset.choices === "current") this.fillParentChoices(sel, false);
   }
 
   scenarioForDrawing() {

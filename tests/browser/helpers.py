@@ -92,6 +92,8 @@ def wait_result(page, timeout=BOOT_TIMEOUT_MS):
         said = [page.text_content(s) for s in ("#form-message", "#boot-error-text")]
         said += page.locator(".field-msg:not(:empty)").all_text_contents()
         raise AssertionError(f"no result; the page says: {' | '.join(t for t in said if t)}")
+    # Off-screen views (plots, equivalent cylinder, tree map) are drawn when the page is idle.
+    page.wait_for_selector("body[data-views=drawn]", state="attached", timeout=timeout)
 
 
 def open_page(page, url):
