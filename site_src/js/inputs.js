@@ -31,10 +31,12 @@ function quickAdapter(form) {
 }
 
 export class Inputs {
-  // decorate(scenario): what main.js adds to every scenario it solves (other sections' fields).
-  constructor(client, { compute, decorate = (s) => s }) {
+  // decorate(scenario): what main.js adds to every scenario it solves, saves, links or exports
+  // (other sections' fields); fill(scenario): puts a loaded scenario's values into those fields.
+  constructor(client, { compute, decorate = (s) => s, fill = () => {} }) {
     this.client = client;
     this.decorate = decorate;
+    this.fill = fill;
     this.compute = compute;
     this.quick = quickAdapter($("#quick-cable-form"));
     this.tree = new TreeTable($("#tree-table"));
@@ -75,6 +77,7 @@ export class Inputs {
   apply(snapshot) {
     const mode = snapshot.mode === "quick" && this.quick.fits(snapshot.scenario) ? "quick" : "tree";
     (mode === "quick" ? this.quick : this.tree).load(snapshot.scenario);
+    this.fill(snapshot.scenario);
     this.setMode(mode);
   }
 
@@ -159,6 +162,7 @@ export class Inputs {
       scenario = keep.parseFile(file.name, await file.text());
       await this.validated(scenario);
       this.tree.load(scenario);
+      this.fill(scenario);
       this.setMode("tree");
     } catch (err) {
       this.error(`Not opened: ${err.message}. Your inputs and your saved work are unchanged.`);
@@ -191,6 +195,7 @@ export class Inputs {
     });
     $("#back-to-demo").addEventListener("click", () => {
       this.tree.load(this.demo);
+      this.fill(this.demo);
       this.setMode("tree");
       this.error("");
       this.replaceSaved("The invented demo cell is back.");

@@ -6,7 +6,7 @@
 // data-t-drawn (every view drawn; see VIEWS).
 import { EngineClient } from "./worker-client.js";
 import { Inputs } from "./inputs.js";  // quick cable or branch table; autosave, links, files
-import { withTolerance } from "./equivalent-input.js";  // equivalent_cylinder.tolerance (section "equivalent")
+import { fillTolerance, withTolerance } from "./equivalent-input.js";  // equivalent_cylinder.tolerance (section "equivalent")
 
 const DEBOUNCE_MS = 250;
 const body = document.body;
@@ -225,7 +225,7 @@ function start() {
         "The connection may be slow, or the browser blocked WebAssembly.");
     }
   }, config.bootTimeoutMs);
-  inputs = new Inputs(client, { compute: () => { clearTimeout(timer); recompute(); }, decorate: withTolerance });
+  inputs = new Inputs(client, { compute: () => { clearTimeout(timer); recompute(); }, decorate: withTolerance, fill: fillTolerance });
   for (const form of inputs.forms) {
     form.addEventListener("input", onInput);
     form.addEventListener("submit", (event) => {

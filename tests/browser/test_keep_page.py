@@ -40,17 +40,22 @@ def test_link_reopens_inputs_in_a_fresh_context(page, served, browser, tmp_path,
     page.goto(served.url)
     wait_result(page)
     page.fill("#f-length", "512")
+    page.fill("#eq-tolerance", "0.2")
     page.press("#f-length", "Enter")
     wait_result(page)
+    assert inputs(page)["equivalent_cylinder"]["tolerance"] == 0.2
     page.click("#copy-link")
     page.wait_for_selector("#keep-status:has-text('characters')", timeout=10000)
     quick_link = page.url
     # A 50-branch tree, opened from a file, then its link.
     f = tmp_path / "fifty.json"
-    f.write_text(json.dumps(fifty_branches()))
+    f.write_text(json.dumps({**fifty_branches(), "equivalent_cylinder": {"tolerance": 0.125}}))
     page.set_input_files("#import-json", str(f))
     page.wait_for_selector("body[data-imported=ok]", state="attached", timeout=BOOT_TIMEOUT_MS)
     wait_result(page)
+    # The file's tolerance is shown in its field, and solved with.
+    assert page.input_value("#eq-tolerance") == "0.125"
+    assert inputs(page)["equivalent_cylinder"]["tolerance"] == 0.125
     page.click("#copy-link")
     page.wait_for_selector("#keep-status:has-text('characters')", timeout=10000)
     tree_link = page.url
@@ -65,8 +70,12 @@ def test_link_reopens_inputs_in_a_fresh_context(page, served, browser, tmp_path,
         if link == quick_link:
             assert p.input_value("#f-length") == "512"
             assert p.get_attribute("body", "data-mode") == "quick"
+            # The equivalent-cylinder tolerance travels in the link, back into its field.
+            assert p.input_value("#eq-tolerance") == "0.2"
+            assert inputs(p)["equivalent_cylinder"]["tolerance"] == 0.2
         else:
             assert p.get_attribute("body", "data-mode") == "tree"
+            assert p.input_value("#eq-tolerance") == "0.125"
             assert inputs(p) == tree_inputs
             assert p.locator("#branch-table tbody").count() == 50
             p.screenshot(path=artifacts / "keep-link-50-branches.png", full_page=True)
@@ -80,17 +89,24 @@ def test_reload_restores_autosave_and_demo_is_one_click_away(page, served):
     wait_saved(page, 1)
     page.fill('#branch-table tbody[data-b="1"] [data-f="length"]', "175")
     wait_saved(page, 2)
+    page.fill("#eq-tolerance", "0.3")
+    wait_saved(page, 3)
     page.goto(served.url)  # no fragment: only the autosave can bring it back
     wait_result(page)
     assert page.get_attribute("body", "data-mode") == "tree"
     assert page.input_value('#branch-table tbody[data-b="1"] [data-f="length"]') == "175"
     assert inputs(page)["branches"][1]["length"] == 175
+    assert page.input_value("#eq-tolerance") == "0.3"
+    assert inputs(page)["equivalent_cylinder"]["tolerance"] == 0.3
     page.click("#back-to-demo")
     wait_result(page)
     assert page.input_value('#branch-table tbody[data-b="1"] [data-f="length"]') == "150"
+    assert page.input_value("#eq-tolerance") == ""  # the demo has none: the default applies
+    assert inputs(page)["equivalent_cylinder"]["tolerance"] == 0.05  # the engine's default, filled in
     page.click("#back-to-previous")
     wait_result(page)
     assert page.input_value('#branch-table tbody[data-b="1"] [data-f="length"]') == "175"
+    assert page.input_value("#eq-tolerance") == "0.3"
 
 
 def test_bad_link_and_corrupt_file_leave_saved_work(page, served, tmp_path, artifacts):
