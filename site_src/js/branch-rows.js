@@ -33,7 +33,11 @@ function endFor(branch) {
 // The scenario the table stands for: branches in table order (so the engine's
 // branches[i] is the table's i-th branch), `end` on every terminal branch.
 export function scenarioFromState(state) {
-  const branches = state.branches.map((b, i) => {
+  // isTerminal's rule (no other row names it as parent) in one pass: rows naming each id.
+  const naming = new Map();
+  for (const b of state.branches) naming.set(b.parent, (naming.get(b.parent) ?? 0) + 1);
+  const terminal = (b) => (naming.get(b.id) ?? 0) - (b.parent === b.id ? 1 : 0) === 0;
+  const branches = state.branches.map((b) => {
     const out = { id: b.id, parent: b.parent === "" ? null : b.parent };
     if (b.sections.length === 1) {
       out.length = parseNumber(b.sections[0].length);
@@ -41,7 +45,7 @@ export function scenarioFromState(state) {
     } else {
       out.sections = b.sections.map((s) => ({ length: parseNumber(s.length), diameter: parseNumber(s.diameter) }));
     }
-    if (isTerminal(state.branches, i)) out.end = endFor(b);
+    if (terminal(b)) out.end = endFor(b);
     return out;
   });
   const c = state.carried || {};

@@ -235,14 +235,25 @@ export class TreeTable {
       branch[f] = t.value;
       this.refreshDerived();
     }
-    if (f === "length" || f === "diameter") drawSchematic(this.schematic, this.scenarioForDrawing());
+    if (f === "length" || f === "diameter") this.redrawSoon();
+  }
+
+  // While typing, the drawing follows at the next frame (one redraw per frame), so that the
+  // input's own path to the engine does not wait for a big tree's drawing.
+  redrawSoon() {
+    if (this.frame) return;
+    const go = () => {
+      this.frame = 0;
+      drawSchematic(this.schematic, this.scenarioForDrawing());
+    };
+    this.frame = typeof requestAnimationFrame === "function" ? requestAnimationFrame(go) : setTimeout(go, 0);
   }
 
   onFormInput(event) {
     if (event.target.closest?.("#branch-table")) return;
     if (event.target.name === "t-syn-mode" || event.target.id?.startsWith("t-syn")) {
       this.readSide();
-      drawSchematic(this.schematic, this.scenarioForDrawing());
+      this.redrawSoon();
     }
   }
 
