@@ -4,7 +4,7 @@
 // nothing here computes physics.
 import "../vendor/d3.min.js";
 import "../vendor/plot.umd.min.js";
-import { numberButton, roundForReading } from "./format.js";
+import { numberButton, roundForReading, toggleFull } from "./format.js";
 
 const Plot = globalThis.Plot;
 const ROOT = "equivalent_cylinder";
@@ -37,14 +37,7 @@ function percent(fraction, key) {
   const button = el("button", rounded, "num");
   button.type = "button";
   Object.assign(button.dataset, { key: `${ROOT}.${key}`, value: String(fraction), rounded, unit: "percent" });
-  button.title = `full value: ${full}`;
-  button.setAttribute("aria-pressed", "false");
-  button.addEventListener("click", () => {
-    const showFull = button.getAttribute("aria-pressed") !== "true";
-    button.setAttribute("aria-pressed", String(showFull));
-    button.textContent = showFull ? full : rounded;
-  });
-  return button;
+  return toggleFull(button, rounded, full);
 }
 
 // The tolerance as the person typed it, in per cent (5 %, 2.5 %), without rounding noise.

@@ -2,6 +2,7 @@
 // The SVG is the drawing itself plus its legend and the engine's stamp; the PNG is that SVG
 // drawn on a canvas at twice the size. Nothing is recomputed.
 import { currentStamp } from "./paper.js";
+import { saveBlob } from "./format.js";
 
 const NS = "http://www.w3.org/2000/svg";
 
@@ -52,15 +53,6 @@ export function figureSVG(figure) {
   return new XMLSerializer().serializeToString(out);
 }
 
-function save(blob, name) {
-  const a = document.createElement("a");
-  a.href = URL.createObjectURL(blob);
-  a.download = name;
-  document.body.append(a);
-  a.click();
-  a.remove();
-  setTimeout(() => URL.revokeObjectURL(a.href), 10000);
-}
 
 function fileName(figure, ext) {
   const fp = (currentStamp().match(/scenario (\w+)/) || [])[1];
@@ -87,8 +79,8 @@ async function download(figure, kind, note) {
     return;
   }
   try {
-    if (kind === "svg") save(new Blob([text], { type: "image/svg+xml" }), fileName(figure, "svg"));
-    else save(await toPNG(text), fileName(figure, "png"));
+    if (kind === "svg") saveBlob(new Blob([text], { type: "image/svg+xml" }), fileName(figure, "svg"));
+    else saveBlob(await toPNG(text), fileName(figure, "png"));
     note.textContent = "";
   } catch (err) {
     note.textContent = `Could not make the ${kind.toUpperCase()}: ${err.message}`;

@@ -21,6 +21,11 @@ export function numberButton(value, key, digits = 3) {
   const full = value === null || value === undefined ? "—" : String(value);
   button.dataset.value = full;
   button.dataset.rounded = rounded;
+  return toggleFull(button, rounded, full);
+}
+
+// Show `rounded` on the button; a click (or Enter) toggles to `full` and back.
+export function toggleFull(button, rounded, full) {
   button.textContent = rounded;
   button.title = `full value: ${full}`;
   button.setAttribute("aria-pressed", "false");
@@ -30,4 +35,15 @@ export function numberButton(value, key, digits = 3) {
     button.textContent = showFull ? full : rounded;
   });
   return button;
+}
+
+// Offer `blob` as a download called `name`.
+export function saveBlob(blob, name) {
+  const a = document.createElement("a");
+  a.href = URL.createObjectURL(blob);
+  a.download = name;
+  document.body.append(a);
+  a.click();
+  a.remove();
+  setTimeout(() => URL.revokeObjectURL(a.href), 10000);
 }

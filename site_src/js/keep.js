@@ -1,6 +1,7 @@
 // Keeping work: the inputs as a link (URL fragment "#s1.<base64url(deflate-raw(JSON))>"),
 // an autosave in localStorage, and scenario files. A snapshot is {mode, scenario}.
 // Nothing read here is trusted: it is parsed, checked, and only ever set as values.
+import { saveBlob } from "./format.js";
 export const PREFIX = "s1.";
 const SAVE_KEY = "somaward.work.v1";
 const PREVIOUS_KEY = "somaward.previous.v1";
@@ -97,14 +98,7 @@ export const loadPrevious = () => loadSaved(PREVIOUS_KEY);
 
 // --- files ---
 export function downloadJSON(scenario, name) {
-  const blob = new Blob([JSON.stringify(scenario, null, 1) + "\n"], { type: "application/json" });
-  const a = document.createElement("a");
-  a.href = URL.createObjectURL(blob);
-  a.download = name;
-  document.body.append(a);
-  a.click();
-  a.remove();
-  setTimeout(() => URL.revokeObjectURL(a.href), 10000);
+  saveBlob(new Blob([JSON.stringify(scenario, null, 1) + "\n"], { type: "application/json" }), name);
 }
 
 export function parseFile(name, text) {
