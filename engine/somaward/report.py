@@ -24,8 +24,8 @@ _LOG_UNDERFLOW = -708.0          # exp() below this is subnormal or 0
 
 
 def _num(x):
-    """A finite float, or None."""
-    x = float(x)
+    """A finite float (−0.0 written as 0.0), or None."""
+    x = float(x) + 0.0
     return x if math.isfinite(x) else None
 
 
@@ -39,7 +39,7 @@ def _ratio_block(name, log_ratio, warnings, what):
                         "its log attenuation is exact.")
         return {name: 0.0, f"{name}_fold": None, f"{name}_log": -lr, f"{name}_percent": 0.0}
     a = math.exp(lr)
-    return {name: a, f"{name}_fold": _num(math.exp(-lr)), f"{name}_log": -lr, f"{name}_percent": 100.0 * a}
+    return {name: a, f"{name}_fold": _num(math.exp(-lr)), f"{name}_log": _num(-lr), f"{name}_percent": 100.0 * a}
 
 
 def _magnitudes(log_values):
