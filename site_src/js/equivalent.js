@@ -141,13 +141,20 @@ function verdict(eq) {
   return box;
 }
 
+// A table row whose first cell is a row header naming it.
+function headedRow(name) {
+  const tr = el("tr");
+  const th = el("th", name);
+  th.scope = "row";
+  tr.append(th);
+  return tr;
+}
+
 function branchPointTable(eq) {
   const rows = eq.branch_points.map((r, i) => {
     const k = `branch_points[${i}]`;
-    const tr = el("tr");
-    const th = el("th", r.parent);
-    th.scope = "row";
-    tr.append(th, el("td", r.children.join(", ")),
+    const tr = headedRow(r.parent);
+    tr.append(el("td", r.children.join(", ")),
       el("td", num(r.parent_diameter_um, `${k}.parent_diameter_um`), "value"),
       el("td", joinNodes(r.child_diameters_um.map((d, j) => num(d, `${k}.child_diameters_um[${j}]`))), "value"),
       el("td", num(r.ratio, `${k}.ratio`), "value"),
@@ -165,10 +172,8 @@ function branchPointTable(eq) {
 function sectionJoinTable(eq) {
   const rows = eq.section_joins.map((r, i) => {
     const k = `section_joins[${i}]`;
-    const tr = el("tr");
-    const th = el("th", r.branch);
-    th.scope = "row";
-    tr.append(th, el("td", `section ${r.section - 1} → ${r.section}`),
+    const tr = headedRow(r.branch);
+    tr.append(el("td", `section ${r.section - 1} → ${r.section}`),
       el("td", [num(r.diameter_before_um, `${k}.diameter_before_um`), " → ",
         num(r.diameter_after_um, `${k}.diameter_after_um`)], "value"),
       el("td", num(r.ratio, `${k}.ratio`), "value"),
@@ -187,10 +192,8 @@ function sectionJoinTable(eq) {
 function terminalTable(eq) {
   const rows = eq.terminals.map((r, i) => {
     const k = `terminals[${i}]`;
-    const tr = el("tr");
-    const th = el("th", r.branch);
-    th.scope = "row";
-    tr.append(th, el("td", num(r.electrotonic_distance, `${k}.electrotonic_distance`), "value"),
+    const tr = headedRow(r.branch);
+    tr.append(el("td", num(r.electrotonic_distance, `${k}.electrotonic_distance`), "value"),
       el("td", percent(r.departure, `${k}.departure`), "value"),
       el("td", r.end_ok ? r.end : `${r.end} (unlike the others)`),
       okCell(r.ok));
