@@ -139,7 +139,7 @@ def big_tree(n_sections: int = 1000) -> dict:
     for i in range(n_sections // 2):
         parent = None if i == 0 else f"b{(i - 1) // 2}"
         branches.append({"id": f"b{i}", "parent": parent,
-                         "sections": [{"length": 30 + i % 17, "diameter": 2.0 / (1 + i % 5) + 0.3},
+                         "cylinders": [{"length": 30 + i % 17, "diameter": 2.0 / (1 + i % 5) + 0.3},
                                       {"length": 20 + i % 11, "diameter": 1.5 / (1 + i % 5) + 0.2}]})
     return {"membrane": {"Rm": 20000, "Ri": 150, "Cm": 1.0}, "soma": {"diameter": 20},
             "branches": branches, "synapse": {"branch": f"b{len(branches) - 1}", "distance": 10}}

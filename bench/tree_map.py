@@ -32,7 +32,7 @@ def random_branches(n_sections, rng):
         m = int(min(rng.integers(10, 21), max(n_sections - total, 1)))
         parent = None if not branches else branches[int(rng.integers(len(branches)))]["id"]
         secs = [{"length": float(rng.uniform(5, 30)), "diameter": float(rng.uniform(0.5, 4))} for _ in range(m)]
-        branches.append({"id": f"b{len(branches)}", "parent": parent, "sections": secs})
+        branches.append({"id": f"b{len(branches)}", "parent": parent, "cylinders": secs})
         total += m
     has_child = {b["parent"] for b in branches}
     for b in branches:
@@ -113,7 +113,7 @@ def main(argv=None):
             t_base, _ = timed(baseline(tree, sec, y), 1)
         depth = len(tree.levels)
         rows.append((n, sites, depth, t_map, t_floor, t_base))
-    print(f"{'sections':>9} {'sites':>7} {'levels':>6} {'map s':>9} {'s/site':>9} {'growth':>7} "
+    print(f"{'cylinders':>9} {'sites':>7} {'levels':>6} {'map s':>9} {'s/site':>9} {'growth':>7} "
           f"{'/floor':>7} {'baseline/map':>13}")
     prev = None
     for n, sites, depth, t_map, t_floor, t_base in rows:

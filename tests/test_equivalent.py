@@ -57,7 +57,7 @@ def _grow(rng, bid, parent, d_um, x_start, depth, symmetric, out):
     n = 2 if symmetric else int(rng.integers(2, 4))
     br = {"id": bid, "parent": parent, "length": x_len * lam, "diameter": d_um}
     if not symmetric and depth == 1:        # S8: one branch as two sections of equal diameter
-        br = {"id": bid, "parent": parent, "sections": [{"length": 0.4 * x_len * lam, "diameter": d_um},
+        br = {"id": bid, "parent": parent, "cylinders": [{"length": 0.4 * x_len * lam, "diameter": d_um},
                                                          {"length": 0.6 * x_len * lam, "diameter": d_um}]}
     out.append(br)
     w = np.full(n, 1.0 / n) if symmetric else rng.dirichlet(np.full(n, 3.0))
@@ -91,7 +91,7 @@ def _x_of_site(sc):
 
 
 def _x_along(branch, dist_um):
-    secs = branch.get("sections", [branch])
+    secs = branch.get("cylinders", [branch])
     x, left = 0.0, dist_um
     for s in secs:
         step = min(left, s["length"])
@@ -325,16 +325,16 @@ def test_taper_step_breaks_the_reduction():
     diameter step 2 → 1 µm inside a branch has ratio 2^{3/2} = 2.828 and breaks the reduction;
     equal-diameter sections (S8) have ratio 1 and do not."""
     d_t = 2 ** (2 / 3)
-    taper = {"id": "trunk", "parent": None, "sections": [{"length": 50.0, "diameter": 2.0 * d_t},
+    taper = {"id": "trunk", "parent": None, "cylinders": [{"length": 50.0, "diameter": 2.0 * d_t},
                                                          {"length": 50.0, "diameter": d_t}]}
     eq = solve(_two_daughters(trunk=taper))["equivalent_cylinder"]
-    (join,) = eq["section_joins"]
+    (join,) = eq["cylinder_joins"]
     assert join["branch"] == "trunk" and join["ratio"] == pytest.approx(2 ** 1.5, rel=1e-12) and not join["ok"]
-    assert eq["breaks"]["section_joins"] == ["trunk"] and not eq["meets_conditions"]
-    assert not eq["conditions"]["three_halves_rule_at_section_joins"]
-    even = dict(taper, sections=[{"length": 50.0, "diameter": d_t}, {"length": 50.0, "diameter": d_t}])
+    assert eq["breaks"]["cylinder_joins"] == ["trunk"] and not eq["meets_conditions"]
+    assert not eq["conditions"]["three_halves_rule_at_cylinder_joins"]
+    even = dict(taper, cylinders=[{"length": 50.0, "diameter": d_t}, {"length": 50.0, "diameter": d_t}])
     eq2 = solve(_two_daughters(trunk=even))["equivalent_cylinder"]
-    assert eq2["section_joins"][0]["ratio"] == 1.0 and eq2["meets_conditions"], eq2["messages"]
+    assert eq2["cylinder_joins"][0]["ratio"] == 1.0 and eq2["meets_conditions"], eq2["messages"]
 
 
 def test_mixed_ends_name_the_odd_terminal():
@@ -451,7 +451,7 @@ def test_rule_table_and_methods_sentence():
     """Common practice, no source: the export hooks give one row per branch point and diameter
     step with the reported ratio, and one sentence with the verdict and the tolerance."""
     d_t = 2 ** (2 / 3)
-    taper = {"id": "trunk", "parent": None, "sections": [{"length": 50.0, "diameter": 1.5 * d_t},
+    taper = {"id": "trunk", "parent": None, "cylinders": [{"length": 50.0, "diameter": 1.5 * d_t},
                                                          {"length": 50.0, "diameter": d_t}]}
     r = solve(_two_daughters(trunk=taper))
     header, rows = rule_table_rows(r)

@@ -30,7 +30,7 @@ CHILD = textwrap.dedent('''
     sc = {"membrane": {"Rm": 20000, "Ri": 150, "Cm": 1.0}, "soma": {"diameter": 20},
           "branches": [{"id": "trunk", "parent": None, "length": 400, "diameter": 3.0},
                        {"id": "tuft", "parent": "trunk", "length": 300, "diameter": 1.0, "end": "sealed"},
-                       {"id": "taper", "parent": "trunk", "sections": [{"length": 50, "diameter": 2},
+                       {"id": "taper", "parent": "trunk", "cylinders": [{"length": 50, "diameter": 2},
                                                                        {"length": 50, "diameter": 1}]}],
           "synapse": {"branch": "tuft", "distance": 250,
                       "current": {"shape": "alpha", "tau": 0.5, "peak": 50}}}

@@ -57,7 +57,7 @@ def scenarios(draw, max_branches=15, max_l=None, soma=None):
         if len(secs) == 1 and draw(st.booleans()):
             b.update(secs[0])
         else:
-            b["sections"] = secs
+            b["cylinders"] = secs
         branches.append(b)
     for i, b in enumerate(branches):
         if not children[i]:
@@ -72,7 +72,7 @@ def scenarios(draw, max_branches=15, max_l=None, soma=None):
             soma_val["Rm"] = draw(_f(1000.0, 100000.0))
     j = draw(st.integers(0, n - 1))
     frac = draw(_f(0.0, 0.97 if branches[j].get("end") == "killed" else 1.0))
-    total = sum(s["length"] for s in branches[j].get("sections", [branches[j]]))
+    total = sum(s["length"] for s in branches[j].get("cylinders", [branches[j]]))
     sc = {"membrane": {"Rm": rm, "Ri": ri, "Cm": cm}, "branches": branches,
           "synapse": {"branch": f"b{j}", "distance": frac * total},
           "frequencies_hz": list(FREQS), "map_spacing_um": 1e6}
@@ -144,11 +144,11 @@ def _split(sc, bi, si, frac):
     """Split section si of branch bi into two of the same diameter at fraction frac."""
     out = copy.deepcopy(sc)
     b = out["branches"][bi]
-    secs = b.pop("sections") if "sections" in b else [{"length": b.pop("length"), "diameter": b.pop("diameter")}]
+    secs = b.pop("cylinders") if "cylinders" in b else [{"length": b.pop("length"), "diameter": b.pop("diameter")}]
     s = secs[si % len(secs)]
     secs[si % len(secs):si % len(secs) + 1] = [{"length": s["length"] * frac, "diameter": s["diameter"]},
                                                {"length": s["length"] * (1 - frac), "diameter": s["diameter"]}]
-    b["sections"] = secs
+    b["cylinders"] = secs
     return out
 
 
@@ -193,7 +193,7 @@ def test_killed_le_infinite_le_sealed(sc, pick):
     base = copy.deepcopy(sc)
     if base["synapse"]["branch"] == f"b{t}":        # keep the site off the (to be) killed end
         b = base["branches"][t]
-        total = sum(s["length"] for s in b.get("sections", [b]))
+        total = sum(s["length"] for s in b.get("cylinders", [b]))
         base["synapse"]["distance"] = min(base["synapse"]["distance"], 0.97 * total)
     logs = {}
     for end in ("killed", "infinite", "sealed"):
@@ -254,7 +254,7 @@ def _chain_sections(n, d=1.0, big_l=2.0):
     lam = 500.0                                  # d = 1 µm, Rm 20 000, Ri 200 (C2)
     return {"membrane": {"Rm": 20000.0, "Ri": 200.0, "Cm": 1.0},
             "branches": [{"id": "c", "parent": None,
-                          "sections": [{"length": big_l * lam / n, "diameter": d} for _ in range(n)]}],
+                          "cylinders": [{"length": big_l * lam / n, "diameter": d} for _ in range(n)]}],
             "synapse": {"branch": "c", "distance": big_l * lam}, "frequencies_hz": [0.0],
             "map_spacing_um": 1e7}
 
@@ -277,14 +277,14 @@ def _check_chain(r, big_l=2.0):
     assert r["electrotonic_distance"] == pytest.approx(big_l, rel=1e-9)
 
 
-@pytest.mark.parametrize("make", [_chain_sections, _chain_branches], ids=["sections", "branches"])
+@pytest.mark.parametrize("make", [_chain_sections, _chain_branches], ids=["cylinders", "branches"])
 def test_chain_beyond_recursion_limit(make):
     """A 3000-deep chain (three times CPython's default recursion limit) solves exactly."""
     _check_chain(somaward.solve(make(3000)))
 
 
 @pytest.mark.slow
-@pytest.mark.parametrize("make", [_chain_sections, _chain_branches], ids=["sections", "branches"])
+@pytest.mark.parametrize("make", [_chain_sections, _chain_branches], ids=["cylinders", "branches"])
 def test_chain_of_1e5(make):
     """Issue 2: a chain of 10⁵ sections (one branch of 10⁵ sections; 10⁵ one-section branches)
     solves with no recursion error and the S2 value. Slow: about 40 s each on 2 cores."""

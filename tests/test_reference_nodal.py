@@ -160,7 +160,7 @@ def test_reference_splitting_changes_nothing():
     one = _cyl({"G": 1.0, "C": 1.0}, length=400, diameter=1.1, soma={"diameter": 15})
     split = copy.deepcopy(one)
     split["branches"][0].pop("length"), split["branches"][0].pop("diameter")
-    split["branches"][0]["sections"] = [{"length": 150, "diameter": 1.1}, {"length": 250, "diameter": 1.1}]
+    split["branches"][0]["cylinders"] = [{"length": 150, "diameter": 1.1}, {"length": 250, "diameter": 1.1}]
     a, b = NodalTree(one, sites=[("c", 400)]), NodalTree(split, sites=[("c", 37), ("c", 211)])
     for f in (0.0, 500.0):
         assert _close(a.impedance(f, "soma", "soma"), b.impedance(f, "soma", "soma"), 1e-25)
@@ -175,14 +175,14 @@ TREES = {
         "soma": {"diameter": 20},
         "branches": [
             {"id": "apical", "parent": None,
-             "sections": [{"length": 100, "diameter": 3.0}, {"length": 150, "diameter": 2.4},
+             "cylinders": [{"length": 100, "diameter": 3.0}, {"length": 150, "diameter": 2.4},
                           {"length": 120, "diameter": 1.8}]},
             {"id": "tuft1", "parent": "apical", "length": 280, "diameter": 0.9, "end": "sealed"},
             {"id": "tuft2", "parent": "apical",
-             "sections": [{"length": 90, "diameter": 1.2}, {"length": 140, "diameter": 0.7}], "end": "killed"},
+             "cylinders": [{"length": 90, "diameter": 1.2}, {"length": 140, "diameter": 0.7}], "end": "killed"},
             {"id": "basal1", "parent": None, "length": 180, "diameter": 1.2, "end": "infinite"},
             {"id": "basal2", "parent": None,
-             "sections": [{"length": 60, "diameter": 1.5}, {"length": 110, "diameter": 0.8}],
+             "cylinders": [{"length": 60, "diameter": 1.5}, {"length": 110, "diameter": 0.8}],
              "end": {"G": 0.4, "C": 1.5}}],
         "synapse": {"branch": "tuft2", "distance": 160,
                     "current": {"shape": "alpha", "tau": 0.5, "peak": 50}},
@@ -193,11 +193,11 @@ TREES = {
         "branches": [
             {"id": "s1", "parent": None, "length": 250, "diameter": 2.0},
             {"id": "c1", "parent": "s1",
-             "sections": [{"length": 100, "diameter": 1.0}, {"length": 100, "diameter": 0.6}], "end": "sealed"},
+             "cylinders": [{"length": 100, "diameter": 1.0}, {"length": 100, "diameter": 0.6}], "end": "sealed"},
             {"id": "c2", "parent": "s1", "length": 150, "diameter": 1.2, "end": "infinite"},
             {"id": "s2", "parent": None, "length": 300, "diameter": 1.0, "end": "killed"},
             {"id": "s3", "parent": None,
-             "sections": [{"length": 50, "diameter": 2.5}, {"length": 50, "diameter": 1.5},
+             "cylinders": [{"length": 50, "diameter": 2.5}, {"length": 50, "diameter": 1.5},
                           {"length": 50, "diameter": 0.9}], "end": {"G": 2.0, "C": 0.5}},
             {"id": "s4", "parent": None, "length": 120, "diameter": 0.7, "end": "sealed"}],
         "synapse": {"branch": "c1", "distance": 130,
@@ -208,10 +208,10 @@ TREES = {
         "soma": {"diameter": 16, "Rm": 3000},
         "branches": [
             {"id": "trunk", "parent": None,
-             "sections": [{"length": 200, "diameter": 2.5}, {"length": 200, "diameter": 1.8}]},
+             "cylinders": [{"length": 200, "diameter": 2.5}, {"length": 200, "diameter": 1.8}]},
             {"id": "brA", "parent": "trunk", "length": 350, "diameter": 0.8, "end": "sealed"},
             {"id": "brB", "parent": "trunk",
-             "sections": [{"length": 100, "diameter": 1.0}, {"length": 100, "diameter": 0.5}], "end": "infinite"},
+             "cylinders": [{"length": 100, "diameter": 1.0}, {"length": 100, "diameter": 0.5}], "end": "infinite"},
             {"id": "basal", "parent": None, "length": 220, "diameter": 1.0, "end": "killed"}],
         "synapse": {"path": "brA", "path_distance": 610,
                     "current": {"shape": "alpha", "tau": 0.5, "peak": 50}},
@@ -224,12 +224,12 @@ TREES = {
             {"id": "l1", "parent": "stem1", "length": 120, "diameter": 1.4},
             {"id": "l1a", "parent": "l1", "length": 150, "diameter": 0.8, "end": {"G": 0.1, "C": 0.2}},
             {"id": "l1b", "parent": "l1",
-             "sections": [{"length": 50, "diameter": 1.0}, {"length": 70, "diameter": 0.6}], "end": "sealed"},
+             "cylinders": [{"length": 50, "diameter": 1.0}, {"length": 70, "diameter": 0.6}], "end": "sealed"},
             {"id": "l2", "parent": "stem1", "length": 100, "diameter": 1.2},
             {"id": "l2a", "parent": "l2", "length": 200, "diameter": 0.5, "end": "killed"},
             {"id": "l2b", "parent": "l2", "length": 90, "diameter": 0.9, "end": "infinite"},
             {"id": "stem2", "parent": None,
-             "sections": [{"length": 40, "diameter": 1.6}, {"length": 60, "diameter": 1.1}], "end": "sealed"},
+             "cylinders": [{"length": 40, "diameter": 1.6}, {"length": 60, "diameter": 1.1}], "end": "sealed"},
             {"id": "stem3", "parent": None, "length": 75, "diameter": 0.6, "end": {"G": 1.0, "C": 0.0}}],
         "synapse": {"branch": "l1b", "distance": 50,  # exactly on a section boundary
                     "current": {"shape": "alpha", "tau": 0.5, "peak": 50}},
@@ -239,7 +239,7 @@ TREES = {
         "soma": {"diameter": 30},
         "branches": [
             {"id": "dend", "parent": None,
-             "sections": [{"length": 300, "diameter": 1.0}, {"length": 400, "diameter": 0.6},
+             "cylinders": [{"length": 300, "diameter": 1.0}, {"length": 400, "diameter": 0.6},
                           {"length": 300, "diameter": 0.4}], "end": "killed"},
             {"id": "short", "parent": None, "length": 40, "diameter": 4.0, "end": {"G": 5.0, "C": 10.0}}],
         "synapse": {"branch": "dend", "distance": 850,
@@ -250,7 +250,7 @@ TREES = {
         "soma": {"diameter": 14, "Rm": 60000},
         "branches": [
             {"id": "main", "parent": None,
-             "sections": [{"length": 70, "diameter": 2.2}, {"length": 130, "diameter": 1.6}]},
+             "cylinders": [{"length": 70, "diameter": 2.2}, {"length": 130, "diameter": 1.6}]},
             {"id": "left", "parent": "main", "length": 260, "diameter": 1.1, "end": {"G": 0.05, "C": 3.0}},
             {"id": "right", "parent": "main", "length": 90, "diameter": 0.9, "end": "killed"},
             {"id": "thick", "parent": None, "length": 60, "diameter": 3.5, "end": "infinite"}],
@@ -262,7 +262,7 @@ TREES = {
         "branches": [
             {"id": "stem", "parent": None, "length": 150, "diameter": 1.8},
             {"id": "tip", "parent": "stem",
-             "sections": [{"length": 40, "diameter": 0.9}, {"length": 60, "diameter": 0.45}], "end": "sealed"},
+             "cylinders": [{"length": 40, "diameter": 0.9}, {"length": 60, "diameter": 0.45}], "end": "sealed"},
             {"id": "side", "parent": "stem", "length": 200, "diameter": 1.3, "end": "infinite"},
             {"id": "other", "parent": None, "length": 90, "diameter": 0.8, "end": {"G": 0.3, "C": 0.0}}],
         "synapse": {"path": "tip", "path_distance": 250,
@@ -359,7 +359,7 @@ def test_S10_constants_and_geometry(name):
     mem = sc["membrane"]
     m.check("tau_m_ms", rep["tau_m_ms"], t.tau_ms)
     for b in sc["branches"]:
-        secs = b.get("sections") or [{"length": b["length"], "diameter": b["diameter"]}]
+        secs = b.get("cylinders") or [{"length": b["length"], "diameter": b["diameter"]}]
         lams = [membrane_constants(mem["Rm"], mem["Ri"], mem["Cm"], s["diameter"])["lambda_um"] for s in secs]
         got = rep["lambda_um"][b["id"]]
         if isinstance(got, list):
@@ -372,8 +372,8 @@ def test_S10_constants_and_geometry(name):
         big_l = mp.fsum(mp.mpf(s["length"]) / lam for s, lam in zip(secs, lams))
         m.check(f"electrotonic_length[{b['id']}]", rep["electrotonic_length"][b["id"]], big_l)
         for i, (s, lam) in enumerate(zip(secs, lams)):
-            if b["id"] in rep.get("sections", {}):
-                row = rep["sections"][b["id"]][i]
+            if b["id"] in rep.get("cylinders", {}):
+                row = rep["cylinders"][b["id"]][i]
                 m.check(f"sections[{b['id']}][{i}].lambda_um", row["lambda_um"], lam)
                 m.check(f"sections[{b['id']}][{i}].electrotonic_length", row["electrotonic_length"],
                         mp.mpf(s["length"]) / lam)

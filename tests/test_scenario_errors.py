@@ -18,7 +18,7 @@ BASE = {"membrane": {"Rm": 20000, "Ri": 150, "Cm": 1.0}, "soma": {"diameter": 20
         "branches": [{"id": "trunk", "parent": None, "length": 400, "diameter": 3.0},
                      {"id": "tuft", "parent": "trunk", "length": 300, "diameter": 1.0, "end": "killed"},
                      {"id": "taper", "parent": "trunk",
-                      "sections": [{"length": 50, "diameter": 2}, {"length": 50, "diameter": 1}]}],
+                      "cylinders": [{"length": 50, "diameter": 2}, {"length": 50, "diameter": 1}]}],
         "synapse": {"branch": "tuft", "distance": 250}}
 
 
@@ -66,8 +66,8 @@ CASES = [
      r"killed end"),
     ("negative_diameter", _set(["branches", 0, "diameter"], -1), "branches[0].diameter", r"must be > 0 µm, got -1$"),
     ("zero_length", _set(["branches", 0, "length"], 0), "branches[0].length", r"must be > 0 µm, got 0$"),
-    ("zero_section_diameter", _set(["branches", 2, "sections", 1, "diameter"], 0.0),
-     "branches[2].sections[1].diameter", r"must be > 0 µm"),
+    ("zero_section_diameter", _set(["branches", 2, "cylinders", 1, "diameter"], 0.0),
+     "branches[2].cylinders[1].diameter", r"must be > 0 µm"),
     ("negative_Rm", _set(["membrane", "Rm"], -5), "membrane.Rm", r"must be > 0 Ω·cm²"),
     ("zero_Cm", _set(["membrane", "Cm"], 0), "membrane.Cm", r"must be > 0 µF/cm²"),
     ("negative_soma", _set(["soma"], {"diameter": -3}), "soma.diameter", r"must be > 0 µm"),
@@ -98,9 +98,9 @@ CASES = [
      r"must be one of 'sealed', 'killed', 'infinite', got 'seald'; did you mean 'sealed'\?"),
     ("bad_end_load", _set(["branches", 1, "end"], {"G": -1}), "branches[1].end.G", r"must be ≥ 0 nS, got -1"),
     ("end_wrong_type", _set(["branches", 1, "end"], 3), "branches[1].end", r"must be 'sealed', 'killed', 'infinite' or an object"),
-    ("length_and_sections", _set(["branches", 0, "sections"], [{"length": 1, "diameter": 1}]), "branches[0]",
-     r"give either 'length' and 'diameter', or 'sections'"),
-    ("empty_sections", _set(["branches", 2, "sections"], []), "branches[2].sections", r"at least 1 item"),
+    ("length_and_cylinders", _set(["branches", 0, "cylinders"], [{"length": 1, "diameter": 1}]), "branches[0]",
+     r"give either 'length' and 'diameter', or 'cylinders'"),
+    ("empty_cylinders", _set(["branches", 2, "cylinders"], []), "branches[2].cylinders", r"at least 1 item"),
     ("no_branches", _set(["branches"], []), "branches", r"at least 1 item"),
     ("soma_wrong_type", _set(["soma"], 5), "soma", r"must be null \(no soma\) or an object with 'diameter'; got 5"),
     ("dual_exp_decay_le_rise", _set(["synapse", "current"],
@@ -141,3 +141,27 @@ def test_error_message(entry, edit, path, rule):
 def test_base_scenario_is_valid():
     """The base is accepted, so each failure above comes from its one edit."""
     somaward.validate(copy.deepcopy(BASE))
+
+
+def test_old_key_sections_still_opens():
+    """Issue 8: files, links and autosaves written before the rename use 'sections' for a branch's
+    cylinders; they open, with one warning naming the new key, and give the same report and
+    fingerprint as the renamed file (common practice, no source: a contract test)."""
+    old = copy.deepcopy(BASE)
+    old["branches"][2]["sections"] = old["branches"][2].pop("cylinders")
+    new_report, old_report = somaward.solve(BASE), somaward.solve(old)
+    assert old_report["scenario"] == new_report["scenario"]
+    assert "sections" not in json_text(old_report["scenario"])
+    (warning,) = [w for w in old_report["warnings"] if "sections" in w]
+    assert warning.startswith("branches[2]: ") and "'cylinders'" in warning and "\n" not in warning
+    assert old_report["attenuation"] == new_report["attenuation"]
+    assert somaward.validate(old) == somaward.validate(BASE)
+    both = copy.deepcopy(old)
+    both["branches"][2]["cylinders"] = both["branches"][2]["sections"]
+    with pytest.raises(ScenarioError, match=r"^branches\[2\]\.sections: unknown key"):
+        somaward.validate(both)
+
+
+def json_text(value):
+    import json
+    return json.dumps(value)

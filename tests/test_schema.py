@@ -54,13 +54,13 @@ def valid_scenarios(draw):
         if draw(st.booleans()):
             b.update(length=draw(_pos(1, 300)), diameter=draw(_pos(0.1, 5)))
         else:
-            b["sections"] = [{"length": draw(_pos(1, 300)), "diameter": draw(_pos(0.1, 5))}
+            b["cylinders"] = [{"length": draw(_pos(1, 300)), "diameter": draw(_pos(0.1, 5))}
                              for _ in range(draw(st.integers(1, 3)))]
         branches.append(b)
     for i, b in enumerate(branches):
         if not children[i] and draw(st.booleans()):
             b["end"] = draw(ENDS)
-    length = lambda b: sum(s["length"] for s in b.get("sections", [b]))  # noqa: E731
+    length = lambda b: sum(s["length"] for s in b.get("cylinders", [b]))  # noqa: E731
     j = draw(st.integers(0, n - 1))
     killed = branches[j].get("end") == "killed"
     frac = draw(st.floats(0.0, 0.9 if killed else 1.0))
@@ -106,7 +106,7 @@ def _objects(sc):
         out.append(("current", sc["synapse"]["current"]))
     for b in sc["branches"]:
         out.append(("branch", b))
-        out.extend(("section", s) for s in b.get("sections", []))
+        out.extend(("cylinder", s) for s in b.get("cylinders", []))
         if isinstance(b.get("end"), dict):
             out.append(("end", b["end"]))
     return out
@@ -123,7 +123,7 @@ def _numbers(sc):
     if cur:
         out.extend((cur, k, "any" if k == "peak" else "pos") for k in cur if k != "shape")
     for b in sc["branches"]:
-        for s in b.get("sections", [b]):
+        for s in b.get("cylinders", [b]):
             out.extend([(s, "length", "pos"), (s, "diameter", "pos")])
         if isinstance(b.get("end"), dict):
             out.extend((b["end"], k, "nonneg") for k in b["end"])
@@ -141,7 +141,7 @@ def _numbers(sc):
 def mutated(draw):
     """A valid scenario and one structural mutation (or none)."""
     sc = draw(valid_scenarios())
-    kind = draw(st.sampled_from(["none", "type", "bad_number", "unknown_key", "missing", "length_and_sections",
+    kind = draw(st.sampled_from(["none", "type", "bad_number", "unknown_key", "missing", "length_and_cylinders",
                                  "neither", "end", "current", "soma", "synapse", "frequencies"]))
     if kind == "type":
         container, key, _ = draw(st.sampled_from(_numbers(sc)))
@@ -156,21 +156,21 @@ def mutated(draw):
     elif kind == "missing":
         where, obj = draw(st.sampled_from(_objects(sc)))
         required = {"": ["membrane", "branches", "synapse"], "membrane": ["Rm", "Ri"], "soma": ["diameter"],
-                    "current": [k for k in obj if k != "shape"] + ["shape"], "section": ["length", "diameter"],
+                    "current": [k for k in obj if k != "shape"] + ["shape"], "cylinder": ["length", "diameter"],
                     "end": ["G"], "synapse": [k for k in obj if k != "current"],
-                    "branch": ["id", "parent"] + (["sections"] if "sections" in obj else ["length", "diameter"])}[where]
+                    "branch": ["id", "parent"] + (["cylinders"] if "cylinders" in obj else ["length", "diameter"])}[where]
         del obj[draw(st.sampled_from(required))]
-    elif kind == "length_and_sections":
+    elif kind == "length_and_cylinders":
         b = draw(st.sampled_from(sc["branches"]))
-        if "sections" in b:
+        if "cylinders" in b:
             b["length"] = 1.0
             if draw(st.booleans()):
                 b["diameter"] = 1.0
         else:
-            b["sections"] = [{"length": b["length"], "diameter": b["diameter"]}]
+            b["cylinders"] = [{"length": b["length"], "diameter": b["diameter"]}]
     elif kind == "neither":
         b = draw(st.sampled_from(sc["branches"]))
-        for k in ("sections", "length", "diameter"):
+        for k in ("cylinders", "length", "diameter"):
             b.pop(k, None)
     elif kind == "end":
         terminals = [b for b in sc["branches"] if "end" in b] or [sc["branches"][-1]]

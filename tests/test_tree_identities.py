@@ -75,7 +75,7 @@ def rall_tree(two_stems=True):
     if two_stems:
         lb = lam_um(1.5)
         branches.append({"id": "stemB", "parent": None,
-                         "sections": [{"length": 0.35 * lb, "diameter": 1.5}, {"length": 0.65 * lb, "diameter": 1.5}]})
+                         "cylinders": [{"length": 0.35 * lb, "diameter": 1.5}, {"length": 0.65 * lb, "diameter": 1.5}]})
         stems.append(1.5)
     return branches, (sum(d**1.5 for d in stems)) ** (2 / 3)
 
@@ -120,12 +120,12 @@ def test_s5_breaking_the_rule_changes_the_impedance():
 def mixed_tree():
     """Invented tree: soma-less or soma variants, tapers, killed / infinite / lumped / sealed ends."""
     return [
-        {"id": "apical", "parent": None, "sections": [{"length": 120, "diameter": 3.0},
+        {"id": "apical", "parent": None, "cylinders": [{"length": 120, "diameter": 3.0},
                                                       {"length": 90, "diameter": 2.2}, {"length": 60, "diameter": 1.6}]},
         {"id": "obl", "parent": "apical", "length": 180, "diameter": 0.7, "end": "killed"},
         {"id": "tuft", "parent": "apical", "length": 260, "diameter": 1.1},
         {"id": "t1", "parent": "tuft", "length": 140, "diameter": 0.5, "end": {"G": 0.8, "C": 2.0}},
-        {"id": "t2", "parent": "tuft", "sections": [{"length": 70, "diameter": 0.8}, {"length": 90, "diameter": 0.4}]},
+        {"id": "t2", "parent": "tuft", "cylinders": [{"length": 70, "diameter": 0.8}, {"length": 90, "diameter": 0.4}]},
         {"id": "basal", "parent": None, "length": 150, "diameter": 1.3, "end": "infinite"},
         {"id": "basal2", "parent": None, "length": 200, "diameter": 0.9},
     ]

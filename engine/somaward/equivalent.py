@@ -31,10 +31,10 @@ full tree.
 
 **Rules chosen here** (stated also in the report):
 
-* Tolerance: each departure is relative — |ratio − 1| at branch points and section joins,
+* Tolerance: each departure is relative — |ratio − 1| at branch points and cylinder joins,
   |X_t/L − 1| at terminals, |g_t/ḡ − 1| for normalised loads — and must be ≤ ``tolerance``
   (scenario key ``equivalent_cylinder.tolerance``, default 0.05).
-* Tapers: a step in diameter inside a branch (a join between two sections) is a branch point
+* Tapers: a step in diameter inside a branch (a join between two cylinders) is a branch point
   with one child, so the 3/2 rule there reads d_prev^{3/2} = d_next^{3/2}: a stepwise taper
   breaks the reduction unless its steps are within the tolerance. (Trees whose Σ d^{3/2} at each
   X varies smoothly reduce to a non-uniform equivalent cable instead; that is not done here.)
@@ -67,7 +67,7 @@ from .sites import point_terms
 from .tree import END_CODES, branch_section_indices, build_tree, solve_tree
 
 __all__ = ["DEFAULT_TOLERANCE", "rule_ratio", "equivalent_diameter_um", "branch_point_rows",
-           "section_join_rows", "terminal_rows", "cylinder_scenario", "cylinder_curve", "compare_logs",
+           "cylinder_join_rows", "terminal_rows", "cylinder_scenario", "cylinder_curve", "compare_logs",
            "equivalent_cylinder", "rule_table_rows", "comparison_rows", "methods_sentence"]
 
 DEFAULT_TOLERANCE = 0.05
@@ -126,13 +126,14 @@ def branch_point_rows(tree, tolerance=DEFAULT_TOLERANCE):
     return rows
 
 
-def section_join_rows(tree, tolerance=DEFAULT_TOLERANCE):
-    """The 3/2 rule at joins between sections of one branch: d_prev^{3/2} = d_next^{3/2}.
+def cylinder_join_rows(tree, tolerance=DEFAULT_TOLERANCE):
+    """The 3/2 rule at joins between the cylinders of one branch: d_prev^{3/2} = d_next^{3/2}.
 
     Returns
     -------
     list of dict
-        ``branch``, ``section`` (index of the distal section of the join, from 0),
+        ``branch``, ``cylinder`` (number of the cylinder after the step, counted from 1 at the
+        branch's proximal end, so the step lies between cylinders ``cylinder - 1`` and ``cylinder``),
         ``diameter_before_um``, ``diameter_after_um``, ``ratio``, ``departure``, ``ok``.
     """
     rows = []
@@ -141,7 +142,7 @@ def section_join_rows(tree, tolerance=DEFAULT_TOLERANCE):
         for j in range(1, len(idx)):
             d0, d1 = float(tree.diameter_um[idx[j - 1]]), float(tree.diameter_um[idx[j]])
             ratio = rule_ratio(d0, [d1])
-            rows.append({"branch": bid, "section": j, "diameter_before_um": d0, "diameter_after_um": d1,
+            rows.append({"branch": bid, "cylinder": j + 1, "diameter_before_um": d0, "diameter_after_um": d1,
                          "ratio": ratio, "departure": ratio - 1.0, "ok": _ok(ratio - 1.0, tolerance)})
     return rows
 
@@ -345,7 +346,7 @@ def _comparison(tree, cyl_tree, sec, y_um, sol_dc=None):
 
 LENGTH_RULE = ("L is the membrane-area-weighted mean of the terminal electrotonic distances (each terminal "
                "weighted by the membrane area of its terminal branch); with infinite ends, the largest terminal X.")
-TAPER_RULE = ("A diameter step between sections of one branch is checked as a branch point with one child "
+TAPER_RULE = ("A diameter step between two cylinders of one branch is checked as a branch point with one child "
               "(d_prev^3/2 = d_next^3/2), so a stepwise taper breaks the reduction unless its steps are "
               "within the tolerance.")
 
@@ -354,7 +355,7 @@ def _messages(points, joins, terms, tolerance):
     pct = f"{100 * tolerance:g} %"
     out = [f"branch point at the end of {r['parent']!r}: d^3/2 ratio {r['ratio']:.4g} (departure "
            f"{100 * r['departure']:+.2f} %) exceeds the tolerance {pct}" for r in points if not r["ok"]]
-    out += [f"diameter step in {r['branch']!r} before section {r['section']}: {r['diameter_before_um']:g} → "
+    out += [f"diameter step in {r['branch']!r} between cylinders {r['cylinder'] - 1} and {r['cylinder']}: {r['diameter_before_um']:g} → "
             f"{r['diameter_after_um']:g} µm (departure {100 * r['departure']:+.2f} %) exceeds {pct}"
             for r in joins if not r["ok"]]
     for r in terms["rows"]:
@@ -369,7 +370,7 @@ def _messages(points, joins, terms, tolerance):
 
 def _conditions(points, joins, terms):
     return {"three_halves_rule_at_branch_points": all(r["ok"] for r in points),
-            "three_halves_rule_at_section_joins": all(r["ok"] for r in joins),
+            "three_halves_rule_at_cylinder_joins": all(r["ok"] for r in joins),
             "equal_terminal_electrotonic_distance": all(r["x_ok"] for r in terms["rows"]),
             "equal_terminal_electrotonic_distance_required": terms["equal_x_required"],
             "uniform_membrane": True,
@@ -406,7 +407,7 @@ def equivalent_cylinder(tree, scenario, sec, y_um, sol_dc=None):
         The steady-state solution of ``tree`` (``solve_tree(tree, [0.0])``), if already computed.
     """
     tol = float(scenario.get("equivalent_cylinder", {}).get("tolerance", DEFAULT_TOLERANCE))
-    points, joins = branch_point_rows(tree, tol), section_join_rows(tree, tol)
+    points, joins = branch_point_rows(tree, tol), cylinder_join_rows(tree, tol)
     terms = terminal_rows(tree, tol)
     cyl = cylinder_scenario(tree, scenario, terms)
     cyl_tree = build_tree(cyl["branches"], cyl["membrane"], cyl["soma"])
@@ -418,10 +419,10 @@ def equivalent_cylinder(tree, scenario, sec, y_um, sol_dc=None):
         "meets_conditions": all(v for k, v in cond.items() if k != "equal_terminal_electrotonic_distance_required"),
         "conditions": cond,
         "breaks": {"branch_points": [r["parent"] for r in points if not r["ok"]],
-                   "section_joins": sorted({r["branch"] for r in joins if not r["ok"]}),
+                   "cylinder_joins": sorted({r["branch"] for r in joins if not r["ok"]}),
                    "terminals": [r["branch"] for r in terms["rows"] if not r["ok"]]},
         "messages": _messages(points, joins, terms, tol),
-        "branch_points": points, "section_joins": joins, "terminals": terms["rows"],
+        "branch_points": points, "cylinder_joins": joins, "terminals": terms["rows"],
         "max_rule_departure": max(deps) if deps else 0.0,
         "terminal_electrotonic_distance_min": terms["x_min"],
         "terminal_electrotonic_distance_max": terms["x_max"],
@@ -448,7 +449,7 @@ def rule_table_rows(report):
     rows : list of list
         ``[parent id, children ids (comma-separated str), ratio (float), departure (float),
         "yes" | "no"]``; a diameter step inside a branch is a row whose parent is
-        ``"<branch> section <j-1>"`` and child ``"<branch> section <j>"``. Numbers are left
+        ``"<branch> cylinder <j-1>"`` and child ``"<branch> cylinder <j>"`` (counted from 1). Numbers are left
         unformatted for the caller.
     """
     eq = report["equivalent_cylinder"]
@@ -456,8 +457,8 @@ def rule_table_rows(report):
     yes = {True: "yes", False: "no"}
     rows = [[r["parent"], ", ".join(r["children"]), r["ratio"], r["departure"], yes[r["ok"]]]
             for r in eq["branch_points"]]
-    rows += [[f"{r['branch']} section {r['section'] - 1}", f"{r['branch']} section {r['section']}",
-              r["ratio"], r["departure"], yes[r["ok"]]] for r in eq["section_joins"]]
+    rows += [[f"{r['branch']} cylinder {r['cylinder'] - 1}", f"{r['branch']} cylinder {r['cylinder']}",
+              r["ratio"], r["departure"], yes[r["ok"]]] for r in eq["cylinder_joins"]]
     return header, rows
 
 

@@ -167,7 +167,7 @@ def methods_text(report):
     """A methods paragraph stating the model, every parameter with its unit, equations, references."""
     sc, site = report["scenario"], report["site"]
     mem = sc["membrane"]
-    n_sections = sum(len(b.get("sections", [b])) for b in sc["branches"])
+    n_sections = sum(len(b.get("cylinders", [b])) for b in sc["branches"])
     soma = sc["soma"]
     soma_text = ("The recording site was an isopotential spherical soma of diameter "
                  f"{soma['diameter']:g} µm with specific membrane resistance {soma['Rm']:g} Ω·cm²"

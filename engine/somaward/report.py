@@ -14,7 +14,7 @@ from .equivalent import equivalent_cylinder
 from .frequency import centroid_delays_ms, complex_step_ms, laplace_of_hz, site_response
 from .maps import map_points, path_points, tree_map_logs
 from .sanity import electrotonic_warnings, geometry_warnings, membrane_warnings
-from .scenario import locate_synapse, validate
+from .scenario import locate_synapse, rename_old_keys, validate
 from .sites import point_terms
 from .tree import branch_section_indices, build_tree, solve_tree
 
@@ -187,8 +187,9 @@ def solve(scenario):
     ScenarioError
         One line naming the field and what is allowed.
     """
+    scenario, warnings = rename_old_keys(scenario)
     sc = validate(scenario)
-    warnings = membrane_warnings(sc["membrane"], sc["soma"]) + geometry_warnings(sc["branches"], sc["soma"])
+    warnings += membrane_warnings(sc["membrane"], sc["soma"]) + geometry_warnings(sc["branches"], sc["soma"])
     tree = build_tree(sc["branches"], sc["membrane"], sc["soma"])
     index = {b["id"]: i for i, b in enumerate(sc["branches"])}
     b, dist = locate_synapse(sc["synapse"], sc["branches"], index)
@@ -202,7 +203,7 @@ def solve(scenario):
         "engine_version": __version__,
         "recording_site": "soma" if tree.has_soma else "root",
         "tau_m_ms": float(tree.tau_ms),
-        "lambda_um": lam, "electrotonic_length": elec, "sections": secs,
+        "lambda_um": lam, "electrotonic_length": elec, "cylinders": secs,
         "terminal_electrotonic_distance": term_x,
         **values,
         "electrotonic_distance": x_site,

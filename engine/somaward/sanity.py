@@ -36,7 +36,7 @@ def geometry_warnings(branches, soma=None):
         out.append(f"soma.diameter = {soma['diameter']:g} µm is outside the usual 5–60 µm of a neuronal soma.")
     odd = []
     for i, b in enumerate(branches):
-        for s in b.get("sections", [b]):
+        for s in b.get("cylinders", [b]):
             if not 0.3 <= s["diameter"] <= 10:
                 odd.append(f"branches[{i}] ({b['id']}): {s['diameter']:g} µm")
                 break

@@ -10,7 +10,8 @@ import math
 from .errors import ScenarioError
 from .schema_check import check, describe, did_you_mean, load_schema
 
-__all__ = ["validate", "default_frequencies_hz", "load_schema", "MAX_MAP_POINTS", "locate_synapse"]
+__all__ = ["validate", "default_frequencies_hz", "load_schema", "MAX_MAP_POINTS", "locate_synapse",
+           "rename_old_keys"]
 
 MAX_MAP_POINTS = 2_000_000
 _REL_TOL = 1e-12
@@ -25,15 +26,47 @@ def default_frequencies_hz():
     return values
 
 
+def rename_old_keys(scenario):
+    """Rewrite keys that older files, links and autosaves used, before validation.
+
+    A branch's chain of uniform cylinders was once the key ``sections``; it is now ``cylinders``
+    (``sections`` means a whole unbranched cable in widely used simulation software).
+
+    Returns
+    -------
+    scenario : dict
+        The scenario itself when nothing was renamed, else a shallow copy with renamed keys.
+    warnings : list of str
+        One line naming the new key, when anything was renamed.
+    """
+    branches = scenario.get("branches") if isinstance(scenario, dict) else None
+    if not isinstance(branches, list):
+        return scenario, []
+    renamed, new = [], []
+    for i, b in enumerate(branches):
+        if isinstance(b, dict) and "sections" in b and "cylinders" not in b:
+            b = {("cylinders" if k == "sections" else k): v for k, v in b.items()}
+            renamed.append(f"branches[{i}]")
+        new.append(b)
+    if not renamed:
+        return scenario, []
+    more = f" and {len(renamed) - 3} more" if len(renamed) > 3 else ""
+    warning = (f"{', '.join(renamed[:3])}{more}: the old key 'sections' was read as 'cylinders', its new "
+               "name (a branch is a chain of uniform cylinders); save the scenario again to update the file.")
+    return {**scenario, "branches": new}, [warning]
+
+
 def validate(scenario):
     """Check a scenario and return it with every default filled in.
+
+    Old key names (see :func:`rename_old_keys`) are accepted.
 
     Raises
     ------
     ScenarioError
         For the first rule broken, naming its JSON path.
     """
-    out = check(scenario)
+    out = check(rename_old_keys(scenario)[0])
     branches = out["branches"]
     index = _check_ids(branches)
     children = _check_parents(branches, index)
@@ -55,8 +88,8 @@ def _ordered(out, given):
 
 
 def branch_length_um(branch):
-    if "sections" in branch:
-        return math.fsum(s["length"] for s in branch["sections"])
+    if "cylinders" in branch:
+        return math.fsum(s["length"] for s in branch["cylinders"])
     return branch["length"]
 
 
@@ -177,7 +210,7 @@ def locate_synapse(syn, branches, index):
 def _check_map_points(branches, spacing_um):
     points = 0.0
     for b in branches:
-        for s in b.get("sections", [b]):
+        for s in b.get("cylinders", [b]):
             points += math.ceil(s["length"] / spacing_um) + 1
             if points > MAX_MAP_POINTS:
                 raise ScenarioError("map_spacing_um", f"too fine for this tree: more than {MAX_MAP_POINTS:,} map "

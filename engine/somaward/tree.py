@@ -89,8 +89,8 @@ def _branch_order(branches):
 
 
 def _sections_of(branch):
-    if "sections" in branch:
-        return [(float(s["length"]), float(s["diameter"])) for s in branch["sections"]]
+    if "cylinders" in branch:
+        return [(float(s["length"]), float(s["diameter"])) for s in branch["cylinders"]]
     return [(float(branch["length"]), float(branch["diameter"]))]
 
 

@@ -10,7 +10,7 @@ const CARRIED = ["title", "notes", "map_spacing_um", "map_frequency_hz", "equiva
 const text = (v) => (v === null || v === undefined ? "" : String(v));
 
 export function emptyBranch(id = "", parent = "") {
-  return { id, parent, sections: [{ length: "", diameter: "" }], end: "sealed", G: "", C: "" };
+  return { id, parent, cylinders: [{ length: "", diameter: "" }], end: "sealed", G: "", C: "" };
 }
 
 // Ids of branches that some other branch names as its parent.
@@ -39,11 +39,11 @@ export function scenarioFromState(state) {
   const terminal = (b) => (naming.get(b.id) ?? 0) - (b.parent === b.id ? 1 : 0) === 0;
   const branches = state.branches.map((b) => {
     const out = { id: b.id, parent: b.parent === "" ? null : b.parent };
-    if (b.sections.length === 1) {
-      out.length = parseNumber(b.sections[0].length);
-      out.diameter = parseNumber(b.sections[0].diameter);
+    if (b.cylinders.length === 1) {
+      out.length = parseNumber(b.cylinders[0].length);
+      out.diameter = parseNumber(b.cylinders[0].diameter);
     } else {
-      out.sections = b.sections.map((s) => ({ length: parseNumber(s.length), diameter: parseNumber(s.diameter) }));
+      out.cylinders = b.cylinders.map((s) => ({ length: parseNumber(s.length), diameter: parseNumber(s.diameter) }));
     }
     if (terminal(b)) out.end = endFor(b);
     return out;
@@ -71,10 +71,10 @@ export function scenarioFromState(state) {
 }
 
 function branchState(b) {
-  const sections = Array.isArray(b.sections) && b.sections.length
-    ? b.sections.map((s) => ({ length: text(s?.length), diameter: text(s?.diameter) }))
+  const cylinders = Array.isArray(b.cylinders) && b.cylinders.length
+    ? b.cylinders.map((s) => ({ length: text(s?.length), diameter: text(s?.diameter) }))
     : [{ length: text(b.length), diameter: text(b.diameter) }];
-  const out = { id: text(b.id), parent: text(b.parent), sections, end: "sealed", G: "", C: "" };
+  const out = { id: text(b.id), parent: text(b.parent), cylinders, end: "sealed", G: "", C: "" };
   if (b.end && typeof b.end === "object") Object.assign(out, { end: "load", G: text(b.end.G), C: text(b.end.C) });
   else if (ENDS.includes(b.end)) out.end = b.end;
   return out;
@@ -111,12 +111,12 @@ export function stateFromScenario(s) {
 // --- rows as tab-separated text -------------------------------------------------------
 export const TSV_COLUMNS = ["id", "parent", "length_um", "diameter_um", "end", "G_nS", "C_pF"];
 
-// One line per section; a branch's further sections repeat its id and parent.
+// One line per cylinder; a branch's further cylinders repeat its id and parent.
 export function rowsToTSV(branches) {
   const clean = (v) => String(v).replace(/[\t\r\n]+/g, " ");
   const lines = [TSV_COLUMNS.join("\t")];
   for (const b of branches) {
-    b.sections.forEach((s, k) => {
+    b.cylinders.forEach((s, k) => {
       const end = k === 0 ? [b.end, b.end === "load" ? b.G : "", b.end === "load" ? b.C : ""] : ["", "", ""];
       lines.push([b.id, b.parent, s.length, s.diameter, ...end].map(clean).join("\t"));
     });
@@ -143,7 +143,7 @@ function headerMap(cells) {
 
 // Text pasted from a spreadsheet → branches (table state). Header optional: with one, the
 // columns are found by name; without, they are id, parent, length, diameter, end, G, C.
-// Consecutive lines with the same id are the sections of one branch (a taper).
+// Consecutive lines with the same id are the cylinders of one branch (a taper).
 export function rowsFromTSV(textIn) {
   const lines = textIn.replace(/\r\n?/g, "\n").split("\n").filter((l) => l.trim() !== "");
   if (!lines.length) throw new Error("nothing to paste: no rows found");
@@ -158,15 +158,15 @@ export function rowsFromTSV(textIn) {
     const id = get("id");
     const parentText = get("parent");
     const parent = ROOT_WORDS.has(parentText.toLowerCase()) ? "" : parentText;
-    const section = { length: get("length"), diameter: get("diameter") };
+    const cylinder = { length: get("length"), diameter: get("diameter") };
     const last = branches[branches.length - 1];
     let b = last;
     if (!last || last.id !== id || id === "") {
       b = emptyBranch(id, parent);
-      b.sections = [];
+      b.cylinders = [];
       branches.push(b);
     }
-    b.sections.push(section);
+    b.cylinders.push(cylinder);
     const end = get("end").toLowerCase();
     const G = get("G"), C = get("C");
     if (G !== "" || end === "load" || end.startsWith("lumped")) Object.assign(b, { end: "load", G, C });

@@ -100,7 +100,7 @@ function ratioHeader() {
 
 const CONDITIONS = [
   ["three_halves_rule_at_branch_points", "3/2 power rule at every branch point"],
-  ["three_halves_rule_at_section_joins", "no diameter step inside a branch (a step is checked as a branch point with one child)"],
+  ["three_halves_rule_at_cylinder_joins", "no diameter step inside a branch (a step is checked as a branch point with one child)"],
   ["equal_terminal_electrotonic_distance", "every terminal at the same electrotonic distance X from the soma"],
   ["uniform_membrane", "the same membrane and cytoplasm everywhere (this input has one set for the whole tree)"],
   ["like_ends", () => ["alike ends: all sealed, all killed, all going on for ever, or loads in proportion to d",
@@ -169,11 +169,11 @@ function branchPointTable(eq) {
   return box;
 }
 
-function sectionJoinTable(eq) {
-  const rows = eq.section_joins.map((r, i) => {
-    const k = `section_joins[${i}]`;
+function cylinderJoinTable(eq) {
+  const rows = eq.cylinder_joins.map((r, i) => {
+    const k = `cylinder_joins[${i}]`;
     const tr = headedRow(r.branch);
-    tr.append(el("td", `section ${r.section - 1} → ${r.section}`),
+    tr.append(el("td", `cylinder ${r.cylinder - 1} → ${r.cylinder}`),
       el("td", [num(r.diameter_before_um, `${k}.diameter_before_um`), " → ",
         num(r.diameter_after_um, `${k}.diameter_after_um`)], "value"),
       el("td", num(r.ratio, `${k}.ratio`), "value"),
@@ -185,7 +185,7 @@ function sectionJoinTable(eq) {
     ["branch", "where", "d before → after (µm)", ["ratio of d", el("sup", "3/2")], "departure from 1",
       "within tolerance"],
     rows, "none: every branch keeps one diameter");
-  box.id = "eq-section-joins";
+  box.id = "eq-cylinder-joins";
   return box;
 }
 
@@ -381,7 +381,7 @@ export function renderEquivalent(container, report) {
   const fig = plotFigure(report, eq);
   const synapse = el("div", [el("h3", "At your synapse"), ...comparisonTable(eq), notGiven(eq)], "eq-cell");
   const rules = el("div", [branchPointTable(eq)], "eq-cell eq-wide");
-  const joins = el("div", [sectionJoinTable(eq)], "eq-cell");
+  const joins = el("div", [cylinderJoinTable(eq)], "eq-cell");
   const ends = el("div", terminalTable(eq), "eq-cell");
   const cylinder = el("div", cylinderTable(eq), "eq-cell");
   container.replaceChildren(el("div", [el("div", verdict(eq), "eq-cell"), synapse, rules, joins, ends,

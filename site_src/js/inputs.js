@@ -16,7 +16,7 @@ function quickAdapter(form) {
     scenario: () => scenarioFromValues(readForm(form)),
     showMessage: (m) => quickMessage(form, m),
     clearMessages: () => quickClear(form),
-    fits: (s) => Array.isArray(s.branches) && s.branches.length === 1 && !s.branches[0].sections && s.synapse?.branch !== undefined,
+    fits: (s) => Array.isArray(s.branches) && s.branches.length === 1 && !s.branches[0].cylinders && s.synapse?.branch !== undefined,
     load(s) {
       const b = s.branches[0];
       const text = (v) => (v === null || v === undefined ? "" : String(v));

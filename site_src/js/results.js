@@ -16,7 +16,7 @@ function branchValue(report, key) {
   const branch = report.site.branch;
   const v = pick(report, key)?.[branch];
   if (!Array.isArray(v)) return v;
-  const sections = report.sections?.[branch] || [];
+  const sections = report.cylinders?.[branch] || [];
   let end = 0;
   for (let k = 0; k < sections.length; k++) {
     end += sections[k].length_um;

@@ -1,6 +1,6 @@
 // A small drawing of the branch table (a dendrogram): each branch a horizontal line whose
 // length is its length in µm, drawn from its parent's far end; line width follows each
-// section's diameter; the synapse is a marked dot. Drawing only — nothing here is physics.
+// cylinder's diameter; the synapse is a marked dot. Drawing only — nothing here is physics.
 const NS = "http://www.w3.org/2000/svg";
 
 function svgEl(tag, attrs = {}, text) {
@@ -12,8 +12,8 @@ function svgEl(tag, attrs = {}, text) {
 
 const num = (v) => (typeof v === "number" && Number.isFinite(v) && v > 0 ? v : 0);
 
-function sectionsOf(b) {
-  const list = Array.isArray(b.sections) ? b.sections : [{ length: b.length, diameter: b.diameter }];
+function cylindersOf(b) {
+  const list = Array.isArray(b.cylinders) ? b.cylinders : [{ length: b.length, diameter: b.diameter }];
   return list.map((s) => ({ length: num(s?.length), diameter: num(s?.diameter) }));
 }
 
@@ -36,7 +36,7 @@ function layout(branches) {
     if (seen.has(i)) return y[i];
     seen.add(i);
     start[i] = x0;
-    const x1 = x0 + sectionsOf(branches[i]).reduce((a, s) => a + s.length, 0);
+    const x1 = x0 + cylindersOf(branches[i]).reduce((a, s) => a + s.length, 0);
     const ys = children[i].map((c) => place(c, x1));
     y[i] = ys.length ? (Math.min(...ys) + Math.max(...ys)) / 2 : slot++;
     return y[i];
@@ -53,7 +53,7 @@ function synapsePoint(scenario, lay) {
     let i = lay.index.get(syn.path);
     const d = num(syn.path_distance);
     while (i !== undefined) {
-      const len = sectionsOf(bs[i]).reduce((a, s) => a + s.length, 0);
+      const len = cylindersOf(bs[i]).reduce((a, s) => a + s.length, 0);
       if (d >= lay.start[i] || bs[i].parent === null) return { i, x: Math.min(d, lay.start[i] + len) };
       i = lay.index.get(bs[i].parent);
     }
@@ -66,7 +66,7 @@ function synapsePoint(scenario, lay) {
 export function drawSchematic(container, scenario) {
   const bs = scenario.branches || [];
   const lay = layout(bs);
-  const ends = bs.map((b, i) => lay.start[i] + sectionsOf(b).reduce((a, s) => a + s.length, 0));
+  const ends = bs.map((b, i) => lay.start[i] + cylindersOf(b).reduce((a, s) => a + s.length, 0));
   const total = Math.max(1, ...ends);
   const W = 460, left = 34, right = 86, rowH = 22, top = 16;
   const H = top * 2 + lay.slots * rowH + 18;
@@ -86,7 +86,7 @@ export function drawSchematic(container, scenario) {
       g.append(svgEl("line", { x1: sx(lay.start[i]), y1: y0, x2: sx(lay.start[i]), y2: y, "stroke-width": 1, stroke: "#9aa3b0" }));
     }
     let x = lay.start[i];
-    for (const s of sectionsOf(b)) {
+    for (const s of cylindersOf(b)) {
       g.append(svgEl("line", { x1: sx(x), y1: y, x2: sx(x + s.length), y2: y, "stroke-width": width(s.diameter) }));
       x += s.length;
     }

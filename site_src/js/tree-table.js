@@ -1,4 +1,4 @@
-// The branch-table editor: rows of branches (each with one or more sections), the synapse,
+// The branch-table editor: rows of branches (each with one or more cylinders), the synapse,
 // the soma and the membrane. Holds the table state as typed text; branch-rows.js turns it into
 // a scenario. Every user text goes into the page through value / textContent only.
 import { emptyBranch, ENDS, isTerminal, rowsFromTSV, rowsToTSV, scenarioFromState, stateFromScenario } from "./branch-rows.js";
@@ -99,7 +99,7 @@ export class TreeTable {
 
   branchBody(b, i) {
     const tb = el("tbody", { className: "branch", dataset: { b: String(i) } });
-    b.sections.forEach((sec, k) => tb.append(this.sectionRow(b, i, sec, k)));
+    b.cylinders.forEach((sec, k) => tb.append(this.cylinderRow(b, i, sec, k)));
     tb.append(el("tr", { className: "row-msg" }, el("td", { colSpan: 8 }, el("p", { className: "field-msg", id: `t-b${i}-msg` }))));
     return tb;
   }
@@ -111,16 +111,16 @@ export class TreeTable {
     });
   }
 
-  sectionRow(b, i, sec, k) {
-    const tr = el("tr", { className: k === 0 ? "branch-row" : "section-row" });
+  cylinderRow(b, i, sec, k) {
+    const tr = el("tr", { className: k === 0 ? "branch-row" : "cylinder-row" });
     const first = k === 0;
-    const name = first ? "" : ` section ${k + 1}`;
+    const name = first ? "" : ` cylinder ${k + 1}`;
     if (first) {
       tr.append(el("td", {}, this.input(i, 0, "id", b.id, `branch ${i + 1} id`)));
       const sel = el("select", { className: "cell cell-parent", dataset: { b: String(i), s: "0", f: "parent" }, ariaLabel: `branch ${i + 1} parent` });
       tr.append(el("td", {}, sel));
     } else {
-      tr.append(el("td", { colSpan: 2, className: "section-label", textContent: `↳ section ${k + 1} of this branch` }));
+      tr.append(el("td", { colSpan: 2, className: "cylinder-label", textContent: `↳ cylinder ${k + 1} of this branch` }));
     }
     tr.append(el("td", {}, this.input(i, k, "length", sec.length, `branch ${i + 1}${name} length (µm)`)));
     tr.append(el("td", {}, this.input(i, k, "diameter", sec.diameter, `branch ${i + 1}${name} diameter (µm)`)));
@@ -139,10 +139,10 @@ export class TreeTable {
     const button = (act, label, title) => el("button", { type: "button", textContent: label, title, ariaLabel: `${title} (branch ${i + 1})`, dataset: { act, b: String(i), s: String(k) } });
     if (first) {
       actions.append(button("up", "↑", "move up"), button("down", "↓", "move down"),
-        button("add-section", "+ section", "add a section to this branch (taper)"),
+        button("add-cylinder", "+ cylinder", "add a cylinder to this branch (taper)"),
         button("add-child", "+ child", "add a branch leaving this one"), button("remove", "✕", "remove this branch"));
     } else {
-      actions.append(button("remove-section", "✕", `remove section ${k + 1}`));
+      actions.append(button("remove-cylinder", "✕", `remove cylinder ${k + 1}`));
     }
     tr.append(actions);
     return tr;
@@ -222,7 +222,7 @@ export class TreeTable {
     const { b, s: k, f } = t.dataset;
     if (f === undefined) return;
     const branch = this.state.branches[Number(b)];
-    if (f === "length" || f === "diameter") branch.sections[Number(k)][f] = t.value;
+    if (f === "length" || f === "diameter") branch.cylinders[Number(k)][f] = t.value;
     else if (f === "id") {
       const old = branch.id;
       branch.id = t.value;
@@ -267,8 +267,8 @@ export class TreeTable {
     const act = button.dataset.act;
     if (act === "up" && i > 0) [list[i - 1], list[i]] = [list[i], list[i - 1]];
     else if (act === "down" && i < list.length - 1) [list[i + 1], list[i]] = [list[i], list[i + 1]];
-    else if (act === "add-section") list[i].sections.push({ ...list[i].sections[list[i].sections.length - 1] });
-    else if (act === "remove-section") list[i].sections.splice(k, 1);
+    else if (act === "add-cylinder") list[i].cylinders.push({ ...list[i].cylinders[list[i].cylinders.length - 1] });
+    else if (act === "remove-cylinder") list[i].cylinders.splice(k, 1);
     else if (act === "add-child") list.splice(i + 1, 0, emptyBranch(this.freshId(), list[i].id));
     else if (act === "remove") list.splice(i, 1);
     else return;
@@ -310,7 +310,7 @@ export class TreeTable {
     this.readSide();
     this.undo = structuredClone(this.state.branches);
     this.state.branches = replace ? rows : [...this.state.branches, ...rows];
-    const n = rows.reduce((a, b) => a + b.sections.length, 0);
+    const n = rows.reduce((a, b) => a + b.cylinders.length, 0);
     this.pasteMsg.textContent = `${replace ? "Replaced the table with" : "Added"} ${rows.length} branches (${n} rows).`;
     this.form.ownerDocument.getElementById("paste-undo").hidden = false;
     this.render();
@@ -354,7 +354,7 @@ export class TreeTable {
     const f = this.form;
     let target = null;
     let cell = null;
-    const m = /^branches\[(\d+)\](?:\.sections\[(\d+)\])?(?:\.(\w+))?/.exec(path);
+    const m = /^branches\[(\d+)\](?:\.cylinders\[(\d+)\])?(?:\.(\w+))?/.exec(path);
     if (m && f.querySelector(`tbody[data-b="${m[1]}"]`)) {
       const [i, k, field] = [m[1], m[2] ?? "0", m[3]];
       target = f.querySelector(`#t-b${i}-msg`);

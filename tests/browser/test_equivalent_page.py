@@ -226,8 +226,8 @@ def test_failing_branch_point_is_marked(page, served, artifacts):
         # Marked by a word and a sign, not by colour alone.
         assert last == ("✓ yes" if point["ok"] else "✗ no")
         assert ("eq-fail" in (row.get_attribute("class") or "")) == (not point["ok"])
-    joins = page.locator("#eq-section-joins tbody tr[data-ok=false]")
-    assert joins.count() == sum(not r["ok"] for r in eq["section_joins"])
+    joins = page.locator("#eq-cylinder-joins tbody tr[data-ok=false]")
+    assert joins.count() == sum(not r["ok"] for r in eq["cylinder_joins"])
     terms = page.locator("#eq-terminals tbody tr[data-ok=false]")
     assert terms.locator("th").all_text_contents() == eq["breaks"]["terminals"]
     # The plot draws one line per branch of the map and the cylinder's curve.
@@ -248,8 +248,8 @@ def test_failing_branch_point_is_marked(page, served, artifacts):
         looser = cpython(shown_report(page)["scenario"])["equivalent_cylinder"]
         assert looser["tolerance"] == loose
         assert page.locator("#eq-branch-points tbody tr[data-ok=false]").count() == 0
-        assert page.locator("#eq-section-joins tbody tr[data-ok=false]").count() == \
-            sum(abs(r["departure"]) > loose for r in eq["section_joins"])
+        assert page.locator("#eq-cylinder-joins tbody tr[data-ok=false]").count() == \
+            sum(abs(r["departure"]) > loose for r in eq["cylinder_joins"])
         assert page.get_attribute("#eq-verdict", "data-verdict") == \
             ("met" if looser["meets_conditions"] else "not-met")
         check_numbers(page, cpython(shown_report(page)["scenario"]), at_least=40)

@@ -36,7 +36,7 @@ def three_branch_scenario() -> dict:
         "membrane": {"Rm": 18000, "Ri": 120, "Cm": 0.95},
         "soma": {"diameter": 15},
         "branches": [
-            {"id": "trunk", "parent": None, "sections": [{"length": 200, "diameter": 3},
+            {"id": "trunk", "parent": None, "cylinders": [{"length": 200, "diameter": 3},
                                                           {"length": 100, "diameter": 2}]},
             {"id": "d1", "parent": "trunk", "length": 150, "diameter": 1.2, "end": "killed"},
             {"id": "d2", "parent": "trunk", "length": 250, "diameter": 0.9, "end": {"G": 2, "C": 5}},
@@ -70,7 +70,7 @@ def action(page, b, act, s=None):
 def type_three_branches(page):
     while page.locator("#branch-table tbody").count() > 1:
         action(page, 1, "remove")
-    while page.locator('#branch-table tbody[data-b="0"] tr.section-row').count() > 0:
+    while page.locator('#branch-table tbody[data-b="0"] tr.cylinder-row').count() > 0:
         action(page, 0, "remove-section", s=1)
     cell(page, 0, "id").fill("trunk")
     cell(page, 0, "length").fill("200")

@@ -63,8 +63,8 @@ def membrane_constants(Rm, Ri, Cm, diameter_um):
 
 
 def _sections_of(branch):
-    if "sections" in branch and branch["sections"] is not None:
-        return [(mp.mpf(s["length"]), mp.mpf(s["diameter"])) for s in branch["sections"]]
+    if "cylinders" in branch and branch["cylinders"] is not None:
+        return [(mp.mpf(s["length"]), mp.mpf(s["diameter"])) for s in branch["cylinders"]]
     return [(mp.mpf(branch["length"]), mp.mpf(branch["diameter"]))]
 
 
