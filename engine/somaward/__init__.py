@@ -5,8 +5,7 @@ functions of :mod:`somaward.membrane`. Importing the package needs numpy only; s
 inside the few functions that need it, so the page can answer before scipy has loaded.
 """
 
-__version__ = "0.1.0"
-
+from ._version import __version__
 from .errors import ScenarioError  # noqa: E402
 from .membrane import (  # noqa: E402
     ac_space_constant_um,

@@ -87,8 +87,9 @@ def results_rows(report):
 
 
 def stamp(report):
-    """'Somaward <version>, scenario <fingerprint>': the line every exported block carries."""
-    return f"Somaward {report['engine_version']}, scenario {fingerprint(report['scenario'])}"
+    """'Somaward <version>, scenario <fingerprint>': the line every exported block carries, as the
+    report itself states it (``report["stamp"]["text"]``)."""
+    return report["stamp"]["text"]
 
 
 def _display_rows(report):

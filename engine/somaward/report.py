@@ -9,10 +9,12 @@ import math
 
 import numpy as np
 
-from . import __version__
+from ._version import __version__
 from .equivalent import equivalent_cylinder
 from .frequency import centroid_delays_ms, complex_step_ms, laplace_of_hz, site_response
+from .export import fingerprint
 from .maps import map_points, path_points, tree_map_logs
+from .quantities import CAUTIONS
 from .sanity import electrotonic_warnings, geometry_warnings, membrane_warnings
 from .scenario import locate_synapse, rename_old_keys, validate
 from .sites import point_terms
@@ -85,11 +87,12 @@ def _branch_tables(tree, branches):
 
 
 def _site_section(tree, branch_index, distance_um):
-    """(section, y) of a point given by branch and distance from the branch's proximal end."""
+    """(section, y, k) of a point given by branch and distance from the branch's proximal end:
+    the section, the distance along it (µm) and its number in the branch, counted from 1."""
     idx = branch_section_indices(tree, branch_index)
-    for i in idx:
+    for k, i in enumerate(idx):
         if distance_um <= tree.start_um[i] + tree.length_um[i] or i == idx[-1]:
-            return i, float(min(max(distance_um - tree.start_um[i], 0.0), tree.length_um[i]))
+            return i, float(min(max(distance_um - tree.start_um[i], 0.0), tree.length_um[i])), k + 1
     raise AssertionError("unreachable")
 
 
@@ -193,7 +196,7 @@ def solve(scenario):
     tree = build_tree(sc["branches"], sc["membrane"], sc["soma"])
     index = {b["id"]: i for i, b in enumerate(sc["branches"])}
     b, dist = locate_synapse(sc["synapse"], sc["branches"], index)
-    sec, y = _site_section(tree, b, dist)
+    sec, y, cylinder = _site_section(tree, b, dist)
     sol_dc, steady, values = _steady_state(tree, sec, y, warnings)
     frequency, centroid = _frequency(tree, sec, y, sc["frequencies_hz"], warnings)
     lam, elec, secs, term_x = _branch_tables(tree, sc["branches"])
@@ -208,7 +211,9 @@ def solve(scenario):
         **values,
         "electrotonic_distance": x_site,
         "site": {"branch": tree.branch_ids[b], "distance_um": float(dist),
-                 "path_distance_um": float(tree.path_start_um[sec] + y), "electrotonic_distance": x_site},
+                 "path_distance_um": float(tree.path_start_um[sec] + y), "electrotonic_distance": x_site,
+                 "cylinder": cylinder, "lambda_um": float(tree.lambda_um[sec]),
+                 "branch_electrotonic_length": elec[tree.branch_ids[b]]},
         "soma": _soma_block(tree, sc),
         "attenuation": {"steady_state": steady},
         "frequency_response": frequency,
@@ -219,7 +224,10 @@ def solve(scenario):
         "equivalent_cylinder": equivalent_cylinder(tree, sc, sec, y, sol_dc),
     }
     report["warnings"] = warnings
+    report["caution"] = list(CAUTIONS)
     report["scenario"] = sc
+    report["stamp"] = {"engine_version": __version__, "fingerprint": fingerprint(sc),
+                       "text": f"Somaward {__version__}, scenario {fingerprint(sc)}"}
     report["defaults_applied"] = defaults_applied(scenario, sc)
     return report
 
