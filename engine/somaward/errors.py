@@ -17,9 +17,27 @@ class ScenarioError(ValueError):
         JSON path of the offending field (``""`` for the whole scenario).
     rule : str
         What is allowed, in words.
+    plain_rule : str, optional
+        The same rule in a form's words ("enter a number in Ω·cm"); defaults to ``rule``.
+    plain_path : str, optional
+        The field the plain message is about, when it is not ``path`` (a missing key).
+
+    Attributes
+    ----------
+    plain : str
+        The message for a person at a form: the field's label from the scenario schema, then
+        the plain rule, e.g. ``Axial resistivity R_i: enter a number in Ω·cm``.
     """
 
-    def __init__(self, path, rule):
+    def __init__(self, path, rule, plain_rule=None, plain_path=None):
         self.path = path
         self.rule = rule
+        self.plain_rule = plain_rule or rule
+        self.plain_path = path if plain_path is None else plain_path
         super().__init__(f"{path}: {rule}" if path else rule)
+
+    @property
+    def plain(self):
+        from .quantities import input_label    # the schema's labels; imported late (no cycle)
+        name = input_label(self.plain_path)
+        return f"{name}: {self.plain_rule}" if name else self.plain_rule

@@ -33,7 +33,7 @@ from dataclasses import dataclass
 
 __all__ = ["Quantity", "QUANTITIES", "TERMS", "END_CONDITIONS", "TABLES", "CAUTIONS", "RECORDING_SITES",
            "canonical_key", "quantity", "label", "unit", "definition", "format_value", "render_markup",
-           "latex_escape", "table_rows", "vocabulary"]
+           "latex_escape", "table_rows", "vocabulary", "input_fields", "input_label"]
 
 RECORDING_SITES = ("soma", "root")
 
@@ -237,7 +237,7 @@ _LIST = [
     _q(f"{_EQ}.branch_points[].children", "Children", "", "The child branches that start at the branch point."),
     _q(f"{_EQ}.branch_points[].parent_diameter_um", "d_[parent]", "µm",
        "Diameter of the parent branch's last cylinder."),
-    _q(f"{_EQ}.branch_points[].child_diameters_um[]", "d_[child]", "µm",
+    _q(f"{_EQ}.branch_points[].child_diameters_um", "d_[child]", "µm",
        "Diameter of each child branch's first cylinder."),
     _q(f"{_EQ}.branch_points[].ratio", "d_[parent]^[3/2]/Σd_[child]^[3/2]", "",
        "The 3/2 power rule holds where this ratio is 1 (Rall 1962)."),
@@ -277,12 +277,51 @@ _LIST = [
        "λ = √(R_[m]·d_[eq]/(4R_[i]))."),
     _q(f"{_EQ}.cylinder.length_um", "Equivalent cylinder length L·λ", "µm", "The cylinder's physical length."),
     _q(f"{_EQ}.cylinder.end", "Far end of the equivalent cylinder", "", "The end condition of the cylinder."),
-    _q(f"{_EQ}.cylinder.stems", "Stems joined at the soma", "", "The branches that leave the soma."),
+    _q(f"{_EQ}.cylinder.stems", "Stems joined at the {rec}", "", "The branches that leave the {rec}."),
     _q(f"{_EQ}.cylinder.curve.electrotonic_distance", "Electrotonic distance X along the cylinder", "", _X_DEF),
     _q(f"{_EQ}.cylinder.curve.soma_to_site", "Voltage ratio V_[X]/V_[{rec}] on the cylinder", "",
        "Steady voltage at X over the voltage at the {rec}, for current injected at the {rec}: cosh(L − X)/cosh L "
        "for a sealed end."),
     _q(f"{_CMP}.electrotonic_distance", "Electrotonic distance X of the synapse", "", _X_DEF),
+    _q(f"{_CMP}.site_beyond_cylinder", "Synapse beyond the cylinder's end", "",
+       "Whether the synapse's X exceeds the cylinder's L, so that the cylinder has no point there."),
+    _q(f"{_CMP}.note", "Note on the comparison", "", "How the full tree and the cylinder are compared."),
+    _q(f"{_CMP}.not_given_by_cylinder.note", "Why the cylinder does not give these", "",
+       "A point on the cylinder stands for the same input spread over every branch at that X."),
+    _q(f"{_EQ}.branch_points", "3/2 power rule at each branch point", "",
+       "One row per branch point (Rall 1962)."),
+    _q(f"{_EQ}.cylinder_joins", "Diameter steps inside a branch", "",
+       "One row per step in diameter between two cylinders of a branch."),
+    _q(f"{_EQ}.messages", "What breaks the conditions", "", "One sentence per broken condition."),
+    _q(f"{_EQ}.conditions.three_halves_rule_at_branch_points", "3/2 power rule at every branch point", "",
+       "d_[parent]^[3/2] = Σd_[child]^[3/2] at every branch point, within the tolerance (Rall 1962)."),
+    _q(f"{_EQ}.conditions.three_halves_rule_at_cylinder_joins", "No diameter step inside a branch", "",
+       "A step between two cylinders of a branch is checked as a branch point with one child."),
+    _q(f"{_EQ}.conditions.equal_terminal_electrotonic_distance",
+       "Every terminal at the same electrotonic distance X", "",
+       "Every terminal's X within the tolerance of the cylinder's L."),
+    _q(f"{_EQ}.conditions.equal_terminal_electrotonic_distance_required", "Equal terminal X needed", "",
+       "Equal terminal X is not needed when every end goes on for ever."),
+    _q(f"{_EQ}.conditions.uniform_membrane", "The same membrane and cytoplasm everywhere", "",
+       "A scenario holds one R_[m], R_[i] and C_[m] for the whole tree, so this condition always holds."),
+    _q(f"{_EQ}.conditions.like_ends", "Alike ends", "",
+       "All ends sealed, all killed, all going on for ever, or lumped loads in proportion to d^[3/2]."),
+    _q(f"{_EQ}.breaks.branch_points", "Branch points that break the 3/2 power rule", "",
+       "The parent branches of the failing branch points."),
+    _q(f"{_EQ}.breaks.cylinder_joins", "Branches with a failing diameter step", "",
+       "The branches whose diameter steps break the 3/2 power rule."),
+    _q(f"{_EQ}.breaks.terminals", "Terminals that break the conditions", "",
+       "Terminals whose X or end condition departs from the others."),
+    _q(f"{_EQ}.terminals[].x_ok", "X within tolerance", "", "Whether |X/L − 1| is within the tolerance."),
+    _q(f"{_EQ}.terminals[].end_ok", "End like the others", "",
+       "Whether the terminal's end condition is like the other terminals'."),
+    _q(f"{_EQ}.cylinder.end.G", "Load conductance G of the cylinder's end", "nS",
+       "The lumped conductance at the cylinder's end: the terminals' loads summed."),
+    _q(f"{_EQ}.cylinder.end.C", "Load capacitance C of the cylinder's end", "pF",
+       "The lumped capacitance at the cylinder's end: the terminals' loads summed."),
+    _q(f"{_EQ}.cylinder.length_rule", "How L is chosen", "", "The rule that sets the cylinder's L."),
+    _q(f"{_EQ}.cylinder.taper_rule", "Tapers", "", "How a diameter step inside a branch is treated."),
+    _q("soma", "Soma", "", "The isopotential spherical soma at the recording site; none when it is not modelled."),
 ]
 
 for _key, _words in (("soma_to_site", "Voltage ratio V_[syn]/V_[{rec}], {rec} → synapse"),
@@ -382,10 +421,16 @@ def canonical_key(key):
 
 
 def quantity(key):
-    """The :class:`Quantity` of a report path (concrete or canonical); ``KeyError`` if none."""
+    """The :class:`Quantity` of a report path (concrete or canonical); ``KeyError`` if none.
+
+    An item of a list of numbers (``frequency_response.frequencies_hz[3]``) is the list's
+    quantity.
+    """
     k = canonical_key(key)
     if k in QUANTITIES:
         return QUANTITIES[k]
+    if k.endswith("[]") and k[:-2] in QUANTITIES:
+        return QUANTITIES[k[:-2]]
     for wild in QUANTITIES:
         if ".*" in wild:
             head, tail = wild.split(".*", 1)
@@ -536,6 +581,34 @@ def table_rows(report, name):
     return rows
 
 
+def input_fields(recording_site="soma"):
+    """The scenario's input fields, labelled from their one source, the scenario schema.
+
+    Returns
+    -------
+    dict
+        Canonical path (``membrane.Ri``, ``branches[].cylinders[].diameter``) →
+        ``{label, label_html, unit, description}``.
+    """
+    from .schema_check import schema_fields
+    return {path: {"label": render_markup(f["label"], "plain", recording_site),
+                   "label_html": render_markup(f["label"], "html", recording_site),
+                   "unit": f["unit"], "description": f["description"]}
+            for path, f in schema_fields().items()}
+
+
+def input_label(path):
+    """Plain label of the input field a concrete JSON path names (or of its nearest labelled
+    parent); "" for the whole scenario.
+
+    >>> input_label("membrane.Ri")
+    'Axial resistivity R_i'
+    """
+    from .schema_check import field_of_path, schema_fields
+    field = field_of_path(path or "")
+    return render_markup(schema_fields()[field]["label"]) if field else ""
+
+
 def vocabulary(recording_site="soma"):
     """Every definition as JSON-ready data for the page (labels in plain text and HTML).
 
@@ -544,7 +617,7 @@ def vocabulary(recording_site="soma"):
     dict
         ``quantities``: key → {label, label_html, unit, definition, definition_html, digits,
         percent}; ``terms``: name → {label, definition}; ``end_conditions``; ``tables``;
-        ``cautions``.
+        ``cautions``; ``inputs``: :func:`input_fields`.
     """
     qs = {}
     for key, q in QUANTITIES.items():
@@ -558,4 +631,4 @@ def vocabulary(recording_site="soma"):
                           "definition": render_markup(d, "plain", recording_site)} for k, (t, d) in TERMS.items()},
             "end_conditions": dict(END_CONDITIONS),
             "tables": {k: {"caption": v["caption"], "keys": list(v["keys"])} for k, v in TABLES.items()},
-            "cautions": list(CAUTIONS)}
+            "cautions": list(CAUTIONS), "inputs": input_fields(recording_site)}

@@ -18,7 +18,7 @@ from importlib import resources
 
 from .errors import ScenarioError
 
-__all__ = ["load_schema", "check", "did_you_mean", "describe"]
+__all__ = ["load_schema", "check", "did_you_mean", "describe", "schema_fields", "field_of_path"]
 
 _TYPE_WORDS = {"object": "an object", "array": "a list", "string": "a string", "number": "a number",
                "null": "null", "boolean": "true or false"}
@@ -37,6 +37,71 @@ def _cached_schema():
 def load_schema():
     """The scenario JSON Schema shipped inside the package, as a new dict."""
     return json.loads(_schema_text())
+
+
+@functools.lru_cache(maxsize=1)
+def _fields():
+    root = _cached_schema()
+    out = {}
+
+    def resolve(node):
+        while "$ref" in node:
+            target = root
+            for part in node["$ref"][2:].split("/"):
+                target = target[part]
+            node = {**target, **{k: v for k, v in node.items() if k != "$ref"}}
+        return node
+
+    def walk(node, path):
+        node = resolve(node)
+        if "x-label" in node:
+            entry = out.setdefault(path, {})
+            for key, name in (("x-label", "label"), ("x-unit", "unit"), ("description", "description")):
+                if key in node:
+                    entry.setdefault(name, node[key])
+        if node.get("type") == "array" and "items" in node:
+            items = resolve(node["items"])
+            if path in out and "x-unit" in items:
+                out[path].setdefault("unit", items["x-unit"])
+            walk(items, path + "[]")
+        for key, sub in node.get("properties", {}).items():
+            walk(sub, f"{path}.{key}" if path else key)
+        for alt in node.get("oneOf", []):
+            walk(alt, path)
+
+    walk(root, "")
+    return {k: {"label": v["label"], "unit": v.get("unit", ""), "description": v.get("description", "")}
+            for k, v in out.items()}
+
+
+def schema_fields():
+    """Every labelled scenario field: canonical path → ``{label, unit, description}``.
+
+    Paths use ``[]`` for list items (``branches[].cylinders[].diameter``); labels are in the
+    markup of :mod:`somaward.quantities`. The schema is their one source.
+
+    >>> schema_fields()["membrane.Ri"]["unit"]
+    'Ω·cm'
+    """
+    return copy.deepcopy(_fields())
+
+
+def field_of_path(path):
+    """The canonical labelled field of a concrete JSON path, or of its nearest labelled parent.
+
+    >>> field_of_path("branches[3].cylinders[0].diameter")
+    'branches[].cylinders[].diameter'
+    >>> field_of_path("membrane.bogus")
+    'membrane'
+    """
+    import re
+
+    fields = _fields()
+    canon = re.sub(r"\[\d+\]", "[]", path)
+    while canon and canon not in fields:
+        cut = max(canon.rfind("."), canon.rfind("["))
+        canon = canon[:cut] if cut > 0 else ""
+    return canon or None
 
 
 def describe(value, limit=40):
@@ -82,6 +147,14 @@ def _is_type(value, name):
     raise KeyError(name)
 
 
+def _plain_missing(node):
+    return f"enter a number{_in(node.get('x-unit'))}" if node.get("type") == "number" else "enter a value"
+
+
+def _in(unit):
+    return f" in {unit}" if unit else ""
+
+
 def _join(path, key):
     if isinstance(key, int):
         return f"{path}[{key}]"
@@ -124,7 +197,7 @@ class _Checker:
         if "enum" in node and value not in node["enum"]:
             allowed = ", ".join(describe(e) for e in node["enum"])
             raise ScenarioError(path, f"must be one of {allowed}, got {describe(value)}"
-                                + did_you_mean(value, node["enum"]))
+                                + did_you_mean(value, node["enum"]), f"choose one of {allowed}")
         if _is_type(value, "number"):
             self.check_number(value, node, path, unit)
         elif isinstance(value, str):
@@ -147,18 +220,23 @@ class _Checker:
             names = [types] if isinstance(types, str) else types
             words = " or ".join(_TYPE_WORDS[t] for t in names)
             unit_words = f" ({unit})" if unit else ""
-            raise ScenarioError(path, f"must be {words}{unit_words}, got {describe(value)}")
+            plain = f"enter a number{_in(unit)}" if names == ["number"] else f"must be {words}"
+            raise ScenarioError(path, f"must be {words}{unit_words}, got {describe(value)}", plain)
 
     def check_number(self, value, node, path, unit):
         u = f" {unit}" if unit else ""
         if not math.isfinite(value):
-            raise ScenarioError(path, f"must be a finite number{f' ({unit})' if unit else ''}, got {value}")
+            raise ScenarioError(path, f"must be a finite number{f' ({unit})' if unit else ''}, got {value}",
+                                f"enter a finite number{_in(unit)}")
         if "exclusiveMinimum" in node and not value > node["exclusiveMinimum"]:
-            raise ScenarioError(path, f"must be > {node['exclusiveMinimum']}{u}, got {describe(value)}")
+            raise ScenarioError(path, f"must be > {node['exclusiveMinimum']}{u}, got {describe(value)}",
+                                f"enter a number greater than {node['exclusiveMinimum']:g}{u}")
         if "minimum" in node and not value >= node["minimum"]:
-            raise ScenarioError(path, f"must be ≥ {node['minimum']}{u}, got {describe(value)}")
+            raise ScenarioError(path, f"must be ≥ {node['minimum']}{u}, got {describe(value)}",
+                                f"enter a number of at least {node['minimum']:g}{u}")
         if "maximum" in node and not value <= node["maximum"]:
-            raise ScenarioError(path, f"must be ≤ {node['maximum']}{u}, got {describe(value)}")
+            raise ScenarioError(path, f"must be ≤ {node['maximum']}{u}, got {describe(value)}",
+                                f"enter a number of at most {node['maximum']:g}{u}")
 
     def check_string(self, value, node, path):
         if len(value) < node.get("minLength", 0):
@@ -184,12 +262,14 @@ class _Checker:
                 raise ScenarioError(path, f"keys must be strings, got {describe(key)}")
             if node.get("additionalProperties", True) is False and key not in props:
                 raise ScenarioError(_join(path, key), "unknown key" + did_you_mean(key, props)
-                                    + f" (allowed here: {', '.join(props)})")
+                                    + f" (allowed here: {', '.join(props)})",
+                                    f"unknown entry {describe(key)}" + did_you_mean(key, props), path)
         for key in node.get("required", []):
             if key not in value:
                 hint = self.resolve(props.get(key, {})).get("description", "").split(". ")[0]
                 raise ScenarioError(path or "scenario", f"missing required key {key!r}"
-                                    + (f" ({hint[0].lower()}{hint[1:].rstrip('.')})" if hint else ""))
+                                    + (f" ({hint[0].lower()}{hint[1:].rstrip('.')})" if hint else ""),
+                                    _plain_missing(self.resolve(props.get(key, {}))), _join(path, key))
         out = {}
         for key, sub in props.items():
             if key in value:
