@@ -38,3 +38,60 @@ def test_odd_values_warn_not_reject(kwargs, phrase):
 def test_slip_is_named_once():
     warnings = somaward.solve(scenario(rm=150.0))["warnings"]
     assert sum("whole-cell input resistance" in w for w in warnings) == 1
+
+
+# --------------------------------------------------------------- the range a warning states is where it fires
+_RANGE = r"usual (?P<lo>[\d.  ]+)–(?P<hi>[\d.  ]+) "
+
+
+def _bounds(message):
+    import re
+
+    m = re.search(_RANGE, message)
+    assert m, message
+    return tuple(float(m.group(k).replace(" ", "").replace("\u2009", "")) for k in ("lo", "hi"))
+
+
+@pytest.mark.parametrize("field,odd,make", [
+    ("membrane.Rm", 3000.0, lambda v: scenario(rm=v)),
+    ("membrane.Cm", 0.3, lambda v: scenario(cm=v)),
+    ("membrane.Ri", 20.0, lambda v: scenario(ri=v)),
+    ("dendrite diameters", 0.1, lambda v: scenario(diameter=v, length=30.0)),
+    ("soma.diameter", 150.0, lambda v: scenario(soma=v)),
+])
+def test_warning_fires_on_the_range_it_states(field, odd, make):
+    """Derived (consistency, no physics): the range a warning quotes ("outside the usual a–b") is
+    read from the message itself, then values at a and b do not warn and values 10⁻⁶ outside
+    either bound do. The ranges themselves are common practice, no source."""
+    def warned(value):
+        return [w for w in somaward.solve(make(value))["warnings"] if w.startswith(field)]
+
+    first = warned(odd)
+    assert len(first) == 1, first
+    lo, hi = _bounds(first[0])
+    assert lo < hi
+    for inside in (lo, hi):
+        assert warned(inside) == [], (inside, warned(inside))
+    for outside in (lo * (1 - 1e-6), hi * (1 + 1e-6)):
+        hits = warned(outside)
+        assert len(hits) == 1 and _bounds(hits[0]) == (lo, hi), (outside, hits)
+
+
+def test_long_path_warning_fires_beyond_the_length_it_states():
+    """Derived: λ = √(Rm·d/(4Ri)) (Rall 1977; computed here, not taken from the engine) gives the
+    length of a cylinder of chosen L; the threshold is read from the message ("more than T")."""
+    import math
+    import re
+
+    rm, ri, d = 20000.0, 150.0, 0.5
+    lam_um = math.sqrt(rm * d * 1e-4 / (4 * ri)) * 1e4
+
+    def warned(L):
+        sc = scenario(rm=rm, ri=ri, diameter=d, length=L * lam_um)
+        return [w for w in somaward.solve(sc)["warnings"] if "space constants long" in w]
+
+    first = warned(10.0)
+    assert len(first) == 1
+    threshold = float(re.search(r"more than ([\d.]+)", first[0]).group(1))
+    assert warned(threshold * (1 - 1e-6)) == []
+    assert len(warned(threshold * (1 + 1e-6))) == 1
