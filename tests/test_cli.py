@@ -51,7 +51,52 @@ def test_every_format(fmt):
 
 def test_md_has_methods_paragraph():
     text = run("report", "-", "--format", "md", stdin=json.dumps(EXAMPLE)).stdout
-    assert "## Methods" in text and "Rall 1959" in text and "Ri = 150 Ω·cm" in text
+    assert "## Methods" in text and "Rall 1959" in text and "R_i = 150 Ω·cm" in text
+
+
+def test_md_uses_the_quantities_words():
+    """Common practice, no source: each row of the md results table is a quantity's own label,
+    rounded value and unit (somaward.quantities), as the page shows them."""
+    from somaward import quantities as q
+
+    text = run("report", "-", "--format", "md", stdin=json.dumps(EXAMPLE)).stdout
+    results = text.split("### ")[0]
+    shown = {}
+    for line in results.splitlines():
+        if line.startswith("| ") and not line.startswith("| **"):
+            label, value, unit = [c.strip() for c in line.strip("|").split(" | ")]
+            shown[label] = (value, unit)
+    report = somaward.solve(EXAMPLE)
+    expected = {}
+    for name in ("steady_state", "constants", "equivalent_cylinder", "branches"):
+        for key, label, value, unit in q.table_rows(report, name):
+            expected[label] = (q.format_value(value, key), unit)
+    expected["Quantity"] = ("Value", "Unit")
+    assert shown == expected
+
+
+@pytest.mark.parametrize("args", [["report", "-"], ["report", "-", "--format", "md"], ["report", "-", "--format", "tsv"],
+                                  ["report", "-", "--format", "csv"], ["report", "-", "--format", "latex"],
+                                  ["demo"], ["demo", "--format", "json"], ["demo", "--format", "csv"],
+                                  ["constants", "--Rm", "20000", "--Ri", "150", "--diameter", "2"],
+                                  ["constants", "--Rm", "20000", "--Ri", "150", "--diameter", "2", "--format", "json"]])
+def test_every_output_carries_the_cautions(args):
+    """Issue 8.7: every CLI output except `schema` states what a passive-cable estimate leaves out."""
+    from somaward.export import latex_escape
+    from somaward.quantities import CAUTIONS
+
+    out = run(*args, stdin=json.dumps(EXAMPLE))
+    assert out.returncode == 0, out.stderr
+    if "json" in args or args == ["report", "-"]:
+        assert json.loads(out.stdout)["caution"] == list(CAUTIONS)
+        return
+    for caution in CAUTIONS:
+        assert (latex_escape(caution) if "latex" in args else caution) in out.stdout
+
+
+def test_schema_is_bare_json():
+    out = run("schema")
+    assert out.returncode == 0 and "caution" not in json.loads(out.stdout)
 
 
 def test_demo_runs_and_says_invented():
@@ -61,14 +106,36 @@ def test_demo_runs_and_says_invented():
 
 
 def test_constants_closed_forms():
-    """λ = 500 µm (Rall 1977; computed); R∞ coth L at L = 1 (Rall 1959) via mpmath."""
-    out = run("constants", "--Rm", "20000", "--Ri", "200", "--Cm", "1", "--diameter", "1", "--length", "500")
-    assert out.returncode == 0
-    lines = {line.split("  ")[0].strip(): line.split()[-2] for line in out.stdout.splitlines()}
-    assert float(lines["space constant λ"]) == pytest.approx(500.0, rel=1e-6)
+    """λ = 500 µm (Rall 1977; computed); R∞ = (2/π)√(Rm·Ri)·d^−3/2 and R∞·coth L, R∞·tanh L at
+    L = 1 (Rall 1959) via mpmath."""
+    args = ("constants", "--Rm", "20000", "--Ri", "200", "--Cm", "1", "--diameter", "1", "--length", "500")
+    out = run(*args, "--format", "json")
+    assert out.returncode == 0, out.stderr
+    values = json.loads(out.stdout)
+    assert values["lambda_um"] == pytest.approx(500.0, rel=1e-12)
+    assert values["electrotonic_length"] == pytest.approx(1.0, rel=1e-12)
+    assert values["tau_m_ms"] == pytest.approx(20.0, rel=1e-12)            # Rm·Cm = 20 000 Ω·cm² · 1 µF/cm²
     r_inf = 2 / mpmath.pi * mpmath.sqrt(20000 * 200) * mpmath.mpf("1e-4") ** mpmath.mpf(-1.5) * 1e-6
-    sealed = float(r_inf * mpmath.coth(1))
-    assert float(lines["input resistance, sealed end (R∞·coth L)"]) == pytest.approx(sealed, rel=1e-5)
+    assert values["input_resistance_infinite_Mohm"] == pytest.approx(float(r_inf), rel=1e-12)
+    assert values["input_resistance_sealed_Mohm"] == pytest.approx(float(r_inf * mpmath.coth(1)), rel=1e-12)
+    assert values["input_resistance_killed_Mohm"] == pytest.approx(float(r_inf * mpmath.tanh(1)), rel=1e-12)
+
+
+def test_constants_text_uses_the_quantities_words():
+    """Common practice, no source: each line is a quantity's label, its value to the quantity's
+    digits and its unit, as in somaward.quantities.CYLINDER_CONSTANTS."""
+    from somaward.quantities import CYLINDER_CONSTANTS, format_value, render_markup
+
+    args = ("constants", "--Rm", "20000", "--Ri", "200", "--diameter", "1", "--length", "500")
+    values = json.loads(run(*args, "--format", "json").stdout)
+    lines = run(*args).stdout.splitlines()
+    table = lines[:lines.index("")]
+    assert len(table) == len(CYLINDER_CONSTANTS)
+    for line, (key, q) in zip(table, CYLINDER_CONSTANTS.items()):
+        label, rest = line[:line.rindex("  ")].rstrip(), line[line.rindex("  "):].split()
+        assert label == render_markup(q.label)
+        assert rest[0] == format_value(values[key], digits=q.digits)
+        assert (rest[1] if len(rest) > 1 else "") == q.unit
 
 
 @pytest.mark.parametrize("args", [["--help"], ["report", "--help"], ["demo", "--help"],

@@ -27,7 +27,7 @@ from mpmath import mp
 
 import somaward
 from somaward import ScenarioError, solve, validate
-from somaward.equivalent import (compare_logs, comparison_rows, cylinder_scenario, equivalent_diameter_um, methods_sentence,
+from somaward.equivalent import (compare_logs, cylinder_scenario, equivalent_diameter_um, methods_sentence,
                                  rule_table_rows, terminal_rows)
 from somaward.schema_check import load_schema
 from somaward.tree import build_tree
@@ -448,22 +448,51 @@ def test_tolerance_moves_the_verdict():
 
 
 def test_rule_table_and_methods_sentence():
-    """Common practice, no source: the export hooks give one row per branch point and diameter
-    step with the reported ratio, and one sentence with the verdict and the tolerance."""
+    """Common practice, no source: the export hooks give a block of branch points and a block of
+    diameter steps with the reported ratios, headed by quantity keys; the methods text names the
+    failing step by its cylinders (counted from 1), gives the verdict and the tolerance, and says
+    how far off the cylinder is with a sign word ("underestimated by 33 %"), never a signed
+    "misestimated"."""
+    from somaward import quantities
+
     d_t = 2 ** (2 / 3)
     taper = {"id": "trunk", "parent": None, "cylinders": [{"length": 50.0, "diameter": 1.5 * d_t},
                                                          {"length": 50.0, "diameter": d_t}]}
     r = solve(_two_daughters(trunk=taper))
-    header, rows = rule_table_rows(r)
-    assert len(header) == 5 and len(rows) == 2
-    assert rows[0][:2] == ["trunk", "a, b"] and rows[0][2] == r["equivalent_cylinder"]["branch_points"][0]["ratio"]
-    assert rows[0][4] == "yes" and rows[1][4] == "no" and rows[1][2] == pytest.approx(1.5 ** 1.5, rel=1e-12)
-    table = dict((q, v) for q, v, _ in comparison_rows(r))
-    cmp_ = r["equivalent_cylinder"]["comparison"]
-    assert table["Soma input resistance, equivalent cylinder"] == cmp_["soma_input_resistance_Mohm"]["cylinder"]
+    blocks = rule_table_rows(r)
+    assert [len(rows) for _, _, rows in blocks] == [1, 1]
+    (_, bp_cols, bp_rows), (_, cj_cols, cj_rows) = blocks
+    for col in bp_cols + cj_cols:
+        quantities.quantity(col)                     # every column is a defined quantity
+    bp = dict(zip(bp_cols, bp_rows[0]))
+    assert bp["equivalent_cylinder.branch_points[].parent"] == "trunk"
+    assert bp["equivalent_cylinder.branch_points[].children"] == ["a", "b"]
+    assert bp["equivalent_cylinder.branch_points[].ratio"] == r["equivalent_cylinder"]["branch_points"][0]["ratio"]
+    assert bp["equivalent_cylinder.branch_points[].ok"] is True
+    cj = dict(zip(cj_cols, cj_rows[0]))
+    assert cj["equivalent_cylinder.cylinder_joins[].ok"] is False and cj["equivalent_cylinder.cylinder_joins[].cylinder"] == 2
+    assert cj["equivalent_cylinder.cylinder_joins[].ratio"] == pytest.approx(1.5 ** 1.5, rel=1e-12)
     text = methods_sentence(r)
-    assert text.count(". ") == 0 and text.endswith(".") and "did not meet" in text and "5 %" in text
-    assert "Rall 1962" in text
+    assert text.endswith(".") and "did not meet" in text and "5 %" in text and "Rall 1962" in text
+    assert "not met between cylinders 1 and 2 of trunk" in text
+    assert "misestimated" not in text and "−" not in text.split("At steady state")[1]
+    err = r["equivalent_cylinder"]["comparison"]["soma_input_resistance_Mohm"]["relative_error"]
+    word = "overestimated" if err > 0 else "underestimated"
+    assert f"{word} the input resistance at the soma by" in text
+
+
+def test_methods_sentence_without_branch_points_or_steps():
+    """Derived: one uniform cylinder is its own equivalent cylinder (Rall 1962), so the sentence
+    says there is nothing for the 3/2 rule to check and that the cylinder matches."""
+    one = {"membrane": MEM, "soma": SOMA,
+           "branches": [{"id": "d", "parent": None, "length": 400.0, "diameter": 1.5}],
+           "synapse": {"branch": "d", "distance": 200.0}}
+    r = solve(one)
+    assert rule_table_rows(r) == []
+    text = methods_sentence(r)
+    assert "no branch point and no diameter step" in text and "branch point(s)" not in text
+    assert "matched the input resistance at the soma to within 0.01 %" in text
+    assert "The tree met these conditions." in text
 
 
 def test_block_present_for_every_tree():

@@ -11,7 +11,7 @@ import sys
 from importlib import resources
 
 from .errors import ScenarioError
-from .export import FORMATS, format_value, render
+from .export import FORMATS, render
 
 __all__ = ["main"]
 
@@ -58,26 +58,60 @@ def _positive(name):
     return parse
 
 
-def _cmd_constants(args):
+CONSTANTS_ORDER = ("lambda_um", "tau_m_ms", "input_resistance_infinite_Mohm", "electrotonic_length",
+                   "input_resistance_sealed_Mohm", "input_resistance_killed_Mohm")
+
+
+def cylinder_constants(diameter, Rm, Ri, Cm=1.0, length=None):
+    """The numbers of ``somaward constants``: key of ``quantities.CYLINDER_CONSTANTS`` → value.
+
+    λ, τm and R∞ of a uniform cylinder; with a length, its electrotonic length L and its input
+    resistance with the far end sealed (R∞·coth L) or killed (R∞·tanh L) (Rall 1959; Rall 1977).
+    """
     from .cable import cylinder_input_resistance_Mohm
     from .membrane import input_resistance_infinite_Mohm, membrane_time_constant_ms, space_constant_um
-    lam = float(space_constant_um(args.diameter, args.Rm, args.Ri))
-    r_inf = float(input_resistance_infinite_Mohm(args.diameter, args.Rm, args.Ri))
-    rows = [("space constant λ", lam, "µm"),
-            ("membrane time constant τm", membrane_time_constant_ms(args.Rm, args.Cm), "ms"),
-            ("input resistance of a semi-infinite cylinder R∞", r_inf, "MΩ")]
-    if args.length is not None:
-        L = args.length / lam
-        rows += [("electrotonic length L", L, ""),
-                 ("input resistance, sealed end (R∞·coth L)", cylinder_input_resistance_Mohm(r_inf, L, "sealed"), "MΩ"),
-                 ("input resistance, killed end (R∞·tanh L)", cylinder_input_resistance_Mohm(r_inf, L, "killed"), "MΩ")]
+    lam = float(space_constant_um(diameter, Rm, Ri))
+    r_inf = float(input_resistance_infinite_Mohm(diameter, Rm, Ri))
+    out = {"lambda_um": lam, "tau_m_ms": float(membrane_time_constant_ms(Rm, Cm)),
+           "input_resistance_infinite_Mohm": r_inf}
+    if length is not None:
+        L = length / lam
+        out.update(electrotonic_length=L,
+                   input_resistance_sealed_Mohm=float(cylinder_input_resistance_Mohm(r_inf, L, "sealed")),
+                   input_resistance_killed_Mohm=float(cylinder_input_resistance_Mohm(r_inf, L, "killed")))
+    return out
+
+
+def _cmd_constants(args):
+    from . import __version__
+    from .quantities import CAUTIONS, CYLINDER_CONSTANTS, format_value, render_markup
+    values = cylinder_constants(args.diameter, args.Rm, args.Ri, args.Cm, args.length)
+    if args.format == "json":
+        inputs = {"diameter": args.diameter, "Rm": args.Rm, "Ri": args.Ri, "Cm": args.Cm, "length": args.length}
+        sys.stdout.write(json.dumps({"engine_version": __version__, "inputs": inputs, **values,
+                                     "caution": list(CAUTIONS)}, indent=1, ensure_ascii=False) + "\n")
+        return
+    rows = []
+    for key in CONSTANTS_ORDER:
+        if key in values:
+            q = CYLINDER_CONSTANTS[key]
+            rows.append((render_markup(q.label), format_value(values[key], digits=q.digits), q.unit))
     width = max(len(r[0]) for r in rows)
     for name, value, unit in rows:
-        print(f"{name:<{width}}  {format_value(float(value), 6):>10} {unit}")
+        print(f"{name:<{width}}  {value:>10} {unit}".rstrip())
+    print()
+    for caution in CAUTIONS:
+        print(f"Caution: {caution}")
 
 
 def _cmd_schema(args):
     sys.stdout.write(resources.files("somaward").joinpath("scenario.schema.json").read_text("utf-8"))
+
+
+def _input_fields():
+    """Label and unit of each input field, from the scenario schema (plain text)."""
+    from .quantities import input_fields
+    return {path: (f["label"], f["unit"]) for path, f in input_fields().items()}
 
 
 def build_parser():
@@ -90,19 +124,26 @@ def build_parser():
                        description="Solve SCENARIO.json ('-' reads stdin) and print the report.")
     r.add_argument("scenario", metavar="SCENARIO.json")
     r.add_argument("--format", choices=FORMATS, default="json",
-                   help="json (the whole report), md (table + methods paragraph), tsv, csv or latex (table)")
+                   help="json (the whole report), md (tables + methods paragraph), tsv, csv or latex (tables); "
+                   "every format carries the cautions of a passive-cable estimate")
     r.set_defaults(run=_cmd_report)
     d = sub.add_parser("demo", help="solve the bundled demo scenario (an invented cell)",
                        description="Solve the bundled demo scenario: an invented cell, not a real neuron.")
     d.add_argument("--format", choices=FORMATS, default="md")
     d.set_defaults(run=_cmd_demo)
-    c = sub.add_parser("constants", help="λ, τm and R∞ of one cylinder",
-                       description="Cable constants of one uniform cylinder (Rall 1977).")
-    c.add_argument("--Rm", type=_positive("Rm"), required=True, help="specific membrane resistance, Ω·cm²")
-    c.add_argument("--Ri", type=_positive("Ri"), required=True, help="axial resistivity, Ω·cm")
-    c.add_argument("--Cm", type=_positive("Cm"), default=1.0, help="specific capacitance, µF/cm² (default 1.0)")
-    c.add_argument("--diameter", type=_positive("diameter"), required=True, help="diameter, µm")
-    c.add_argument("--length", type=_positive("length"), default=None, help="length, µm (adds L and R_in)")
+    c = sub.add_parser("constants", help="λ, τm and R∞ of one cylinder (with --length: L and input resistances)",
+                       description="Cable constants of one uniform cylinder (Rall 1959; Rall 1977).")
+    fields = _input_fields()
+    for opt, path, kw in (("--Rm", "membrane.Rm", {"required": True}), ("--Ri", "membrane.Ri", {"required": True}),
+                          ("--Cm", "membrane.Cm", {"default": 1.0}),
+                          ("--diameter", "branches[].diameter", {"required": True}),
+                          ("--length", "branches[].length", {"default": None})):
+        label, unit = fields[path]
+        extra = " (adds L and the input resistances with a sealed or killed far end)" if opt == "--length" else ""
+        dflt = f"; {kw['default']:g} if not given" if kw.get("default") else ""
+        c.add_argument(opt, type=_positive(opt[2:]), help=f"{label}, {unit}{dflt}{extra}", **kw)
+    c.add_argument("--format", choices=("text", "json"), default="text",
+                   help="text (a table for reading) or json (keys with their units, for scripts)")
     c.set_defaults(run=_cmd_constants)
     s = sub.add_parser("schema", help="print the scenario JSON Schema")
     s.set_defaults(run=_cmd_schema)

@@ -63,12 +63,13 @@ from collections import Counter
 
 import numpy as np
 
+from .quantities import label as _label, render_markup as _render, unit as _unit
 from .sites import point_terms
 from .tree import END_CODES, branch_section_indices, build_tree, solve_tree
 
 __all__ = ["DEFAULT_TOLERANCE", "rule_ratio", "equivalent_diameter_um", "branch_point_rows",
            "cylinder_join_rows", "terminal_rows", "cylinder_scenario", "cylinder_curve", "compare_logs",
-           "equivalent_cylinder", "rule_table_rows", "comparison_rows", "methods_sentence"]
+           "equivalent_cylinder", "rule_table_rows", "methods_sentence"]
 
 DEFAULT_TOLERANCE = 0.05
 _END_NAMES = {v: k for k, v in END_CODES.items()}
@@ -319,8 +320,8 @@ def _pair(ln_tree, ln_cyl):
 
 
 NOT_GIVEN = ("A point on the equivalent cylinder stands for input spread over every branch at the same "
-             "electrotonic distance, so the cylinder does not give the synapse's own input resistance or "
-             "its site→soma attenuation; the values here are the full tree's.")
+             "electrotonic distance, so the cylinder does not give the input resistance at the synapse or the "
+             "voltage ratio from the synapse to the recording site; the values here are the full tree's.")
 
 
 def _comparison(tree, cyl_tree, sec, y_um, sol_dc=None):
@@ -347,24 +348,36 @@ def _comparison(tree, cyl_tree, sec, y_um, sol_dc=None):
 LENGTH_RULE = ("L is the membrane-area-weighted mean of the terminal electrotonic distances (each terminal "
                "weighted by the membrane area of its terminal branch); with infinite ends, the largest terminal X.")
 TAPER_RULE = ("A diameter step between two cylinders of one branch is checked as a branch point with one child "
-              "(d_prev^3/2 = d_next^3/2), so a stepwise taper breaks the reduction unless its steps are "
+              "(d_before^3/2 = d_after^3/2), so a stepwise taper breaks the reduction unless its steps are "
               "within the tolerance.")
 
 
+def _signed_pct(fraction):
+    return f"{100 * fraction:+.3g} %".replace("-", "−")
+
+
 def _messages(points, joins, terms, tolerance):
-    pct = f"{100 * tolerance:g} %"
-    out = [f"branch point at the end of {r['parent']!r}: d^3/2 ratio {r['ratio']:.4g} (departure "
-           f"{100 * r['departure']:+.2f} %) exceeds the tolerance {pct}" for r in points if not r["ok"]]
-    out += [f"diameter step in {r['branch']!r} between cylinders {r['cylinder'] - 1} and {r['cylinder']}: {r['diameter_before_um']:g} → "
-            f"{r['diameter_after_um']:g} µm (departure {100 * r['departure']:+.2f} %) exceeds {pct}"
+    """One sentence per broken condition; branches named by id, a branch's cylinders counted from 1."""
+    tol = f"{100 * tolerance:g} %"
+    bp_ratio, cj_ratio = _label(f"{_BP}.ratio"), _label(f"{_CJ}.ratio")
+    um = _unit(f"{_CJ}.diameter_before_um")
+    out = [f"Branch point at the end of {r['parent']}: {bp_ratio} = {r['ratio']:.4g}, a departure "
+           f"of {_signed_pct(r['departure'])} from the 3/2 power rule, beyond the tolerance of {tol}."
+           for r in points if not r["ok"]]
+    out += [f"Diameter step in {r['branch']} between cylinders {r['cylinder'] - 1} and {r['cylinder']}: "
+            f"{r['diameter_before_um']:g} → {r['diameter_after_um']:g} {um}, {cj_ratio} = {r['ratio']:.4g}, "
+            f"a departure of {_signed_pct(r['departure'])} from the 3/2 power rule, beyond the tolerance of {tol}."
             for r in joins if not r["ok"]]
     for r in terms["rows"]:
         if not r["end_ok"]:
-            out.append(f"terminal {r['branch']!r}: end {r['end']!r} differs from the others' "
-                       f"({terms['end']!r}), or its load does not scale with d^3/2 within {pct}")
+            if r["end"] == terms["end"] == "load":
+                out.append(f"Terminal {r['branch']}: its load's G and C are not in proportion to d^3/2 like the "
+                           f"other terminals' loads, within the tolerance of {tol}.")
+            else:
+                out.append(f"Terminal {r['branch']}: its end is {r['end']}, the others' {terms['end']}.")
         if not r["x_ok"]:
-            out.append(f"terminal {r['branch']!r}: X = {r['electrotonic_distance']:.4g} departs "
-                       f"{100 * r['departure']:+.2f} % from L = {terms['L']:.4g} (tolerance {pct})")
+            out.append(f"Terminal {r['branch']}: X = {r['electrotonic_distance']:.4g}, a departure of "
+                       f"{_signed_pct(r['departure'])} from L = {terms['L']:.4g}, beyond the tolerance of {tol}.")
     return out
 
 
@@ -440,80 +453,160 @@ def equivalent_cylinder(tree, scenario, sec, y_um, sol_dc=None):
     }
 
 
+# ------------------------------------------------------------------ export hooks (text)
+# Labels and units of every number come from somaward.quantities; only the sentences are here.
+
+_BP = "equivalent_cylinder.branch_points[]"
+_CJ = "equivalent_cylinder.cylinder_joins[]"
+RULE_TABLE_BLOCKS = (
+    ("branch_points", "Branch points: the 3/2 power rule d_[parent]^[3/2] = Σd_[child]^[3/2] (Rall 1962)",
+     ("parent", "children", "parent_diameter_um", "child_diameters_um", "ratio", "departure", "ok")),
+    ("cylinder_joins", "Diameter steps between the cylinders of a branch, each a branch point with one child",
+     ("branch", "cylinder", "diameter_before_um", "diameter_after_um", "ratio", "departure", "ok")),
+)
+
+
 def rule_table_rows(report):
-    """The 3/2-rule table for exports: one row per branch point, then one per diameter step.
+    """The 3/2-rule table for exports: a block of branch points, then a block of diameter steps.
 
     Returns
     -------
-    header : list of str
-    rows : list of list
-        ``[parent id, children ids (comma-separated str), ratio (float), departure (float),
-        "yes" | "no"]``; a diameter step inside a branch is a row whose parent is
-        ``"<branch> cylinder <j-1>"`` and child ``"<branch> cylinder <j>"`` (counted from 1). Numbers are left
-        unformatted for the caller.
+    list of (caption, columns, rows)
+        ``caption`` in the label markup of :mod:`somaward.quantities`; ``columns`` the canonical
+        quantity keys of the columns (``equivalent_cylinder.branch_points[].ratio`` …), whose labels
+        and units head the table; ``rows`` the report's own values (unformatted), one list per
+        branch point or diameter step. A step is named by its branch id and the number of the
+        cylinder after it (counted from 1). Blocks without rows are left out.
     """
     eq = report["equivalent_cylinder"]
-    header = ["parent", "children", "ratio d_parent^3/2 / sum d_child^3/2", "departure", "ok"]
-    yes = {True: "yes", False: "no"}
-    rows = [[r["parent"], ", ".join(r["children"]), r["ratio"], r["departure"], yes[r["ok"]]]
-            for r in eq["branch_points"]]
-    rows += [[f"{r['branch']} cylinder {r['cylinder'] - 1}", f"{r['branch']} cylinder {r['cylinder']}",
-              r["ratio"], r["departure"], yes[r["ok"]]] for r in eq["cylinder_joins"]]
-    return header, rows
+    prefix = {"branch_points": _BP, "cylinder_joins": _CJ}
+    out = []
+    for name, caption, cols in RULE_TABLE_BLOCKS:
+        rows = [[r[c] for c in cols] for r in eq[name]]
+        if rows:
+            out.append((caption, [f"{prefix[name]}.{c}" for c in cols], rows))
+    return out
 
 
-def comparison_rows(report):
-    """(quantity, value, unit) rows for a results table, in the style of ``export.results_rows``.
-
-    Values are numbers (None where not defined) or short strings; relative errors are in %.
-    """
-    eq = report["equivalent_cylinder"]
-    cyl, cmp_ = eq["cylinder"], eq["comparison"]
-    pct = lambda v: None if v is None else 100.0 * v  # noqa: E731
-    rows = [("Equivalent cylinder: conditions met (tolerance %g %%)" % (100 * eq["tolerance"]),
-             "yes" if eq["meets_conditions"] else "no", ""),
-            ("Equivalent cylinder diameter d_eq", cyl["diameter_um"], "µm"),
-            ("Equivalent cylinder electrotonic length L", cyl["electrotonic_length"], ""),
-            ("  terminal X, min", cyl["electrotonic_length_min"], ""),
-            ("  terminal X, max", cyl["electrotonic_length_max"], "")]
-    for key, label, unit in (("soma_input_resistance_Mohm", "Soma input resistance", "MΩ"),
-                             ("transfer_resistance_Mohm", "Transfer resistance synapse–soma", "MΩ"),
-                             ("soma_to_site", "Attenuation soma→synapse (V_syn/V_soma)", "")):
-        rows += [(f"{label}, equivalent cylinder", cmp_[key]["cylinder"], unit),
-                 ("  relative error of the cylinder", pct(cmp_[key]["relative_error"]), "%")]
-    return rows
+def _plain(markup, rec="soma"):
+    return _render(markup, "plain", rec)
 
 
-def _g(x):
-    return "n/a" if x is None else f"{x:.4g}"
+def _lower_first(text):
+    """Lower-case the first letter of a word ('Input resistance' → 'input resistance'), never of a symbol."""
+    return text[:1].lower() + text[1:] if text[1:2].islower() else text
 
 
-def _pct(x):
-    return "n/a" if x is None else f"{100 * x:+.2g} %"
+def _and(items, limit=6):
+    """'a', 'a and b', 'a, b and c'; more than ``limit`` items end in 'and N more'."""
+    items = [str(i) for i in items]
+    if len(items) > limit:
+        items = items[:limit - 1] + [f"{len(items) - limit + 1} more"]
+    return items[0] if len(items) == 1 else ", ".join(items[:-1]) + " and " + items[-1]
+
+
+def _count(n, singular, plural=None):
+    return f"{n} {singular if n == 1 else (plural or singular + 's')}"
+
+
+def _span(values, digits=3):
+    """'= 1.02' for one value (or equal values at this precision), else 'from 1.02 to 1.41'."""
+    lo, hi = f"{min(values):.{digits}g}", f"{max(values):.{digits}g}"
+    return f"= {lo}" if lo == hi else f"from {lo} to {hi}"
+
+
+def _rule_clause(eq):
+    points, joins = eq["branch_points"], eq["cylinder_joins"]
+    rule = "the 3/2 power rule, " + _plain("d_[parent]^[3/2] = Σd_[child]^[3/2]") + ","
+    if not points and not joins:
+        return rule + " which had nothing to apply to, as the tree had no branch point and no diameter step"
+    parts = []
+    if points:
+        bad = [r["parent"] for r in points if not r["ok"]]
+        verdict = ("met" if len(points) == 1 else "met at each") if not bad else \
+            f"not met at the end of {_and(bad)}"
+        parts.append(f"at its {_count(len(points), 'branch point')} ({_label(f'{_BP}.ratio')} "
+                     f"{_span([r['ratio'] for r in points])}; {verdict})")
+    if joins:
+        bad = [f"between cylinders {r['cylinder'] - 1} and {r['cylinder']} of {r['branch']}"
+               for r in joins if not r["ok"]]
+        verdict = ("met" if len(joins) == 1 else "met at each") if not bad else f"not met {_and(bad)}"
+        each = "each taken" if len(joins) > 1 else "taken"
+        parts.append(f"at its {_count(len(joins), 'diameter step')} between the cylinders of a branch, {each} "
+                     f"as a branch point with one child ({_label(f'{_CJ}.ratio')} "
+                     f"{_span([r['ratio'] for r in joins])}; {verdict})")
+    tail = "" if points else ", the tree having no branch point"
+    return f"{rule} {' and '.join(parts)}{tail}"
+
+
+def _terminal_clause(eq):
+    terms = eq["terminals"]
+    if not eq["conditions"]["equal_terminal_electrotonic_distance_required"]:
+        return "the same electrotonic distance X at every terminal end, which infinite ends do not need"
+    if len(terms) == 1:
+        return "the same electrotonic distance X at every terminal end (the tree had a single terminal)"
+    bad = [r["branch"] for r in terms if not r["x_ok"]]
+    verdict = "met" if not bad else f"not met at {_and(bad)}"
+    return (f"the same electrotonic distance X at every terminal end (X from "
+            f"{eq['terminal_electrotonic_distance_min']:.3g} to {eq['terminal_electrotonic_distance_max']:.3g}; "
+            f"{verdict})")
+
+
+def _ends_clause(eq):
+    terms = eq["terminals"]
+    if eq["conditions"]["like_ends"]:
+        end = terms[0]["end"]
+        if len(terms) == 1:
+            return f"and like end conditions (a single {end} end)"
+        if end == "load":
+            return "and like end conditions (all loads, in proportion to d^3/2)"
+        return f"and like end conditions (all {end})"
+    common = next((r["end"] for r in terms if r["end_ok"]), None)
+    odd = [f"the load at {r['branch']} is not in proportion to d^3/2" if r["end"] == common == "load"
+           else f"{r['branch']} is {r['end']}" for r in terms if not r["end_ok"]]
+    others = f", the others {common}" if common and any(r["end"] != common for r in terms) else ""
+    return f"and like end conditions (not met: {_and(odd)}{others})"
+
+
+def _error_clause(what, err):
+    if err is None:
+        return None
+    pct = abs(100.0 * err)
+    if pct < 0.005:
+        return f"matched the {what} to within 0.01 %"
+    verb = "overestimated" if err > 0 else "underestimated"
+    return f"{verb} the {what} by {pct:.0f} %" if pct >= 10 else f"{verb} the {what} by {pct:.2g} %"
 
 
 def methods_sentence(report):
-    """One sentence for a methods paragraph describing the reduction and its error (own words)."""
+    """The equivalent-cylinder part of the methods paragraph: the conditions tested, the verdict and
+    the cylinder's error, in the words of :mod:`somaward.quantities` (a few sentences)."""
+    label = _label
     eq = report["equivalent_cylinder"]
+    rec = report.get("recording_site", "soma")
     cyl, cmp_ = eq["cylinder"], eq["comparison"]
-    n = len(eq["branch_points"])
-    ratios = [r["ratio"] for r in eq["branch_points"]]
-    span = f"{min(ratios):.3g}–{max(ratios):.3g}" if ratios else "not applicable (no branch points)"
-    verdict = "met" if eq["meets_conditions"] else "did not meet"
-    return (f"The tree was tested against the conditions for reduction to an equivalent cylinder "
-            f"(Rall 1962; Rall 1964): the ratio d_parent^3/2/Σd_child^3/2 at its {n} branch point(s) was "
-            f"{span}, terminal electrotonic distances ranged from {eq['terminal_electrotonic_distance_min']:.3g} "
-            f"to {eq['terminal_electrotonic_distance_max']:.3g}, and the tree {verdict} the conditions within a "
-            f"relative tolerance of {100 * eq['tolerance']:g} %; the cylinder (diameter "
-            f"{cyl['diameter_um']:.3g} µm, L = {cyl['electrotonic_length']:.3g}) misestimated the steady-state "
-            f"soma input resistance by {_pct(cmp_['soma_input_resistance_Mohm']['relative_error'])} and "
-            f"{_at_site(cmp_)}, while the synapse's own input resistance and its synapse→soma attenuation "
-            f"were taken from the full tree.")
-
-
-def _at_site(cmp_):
+    tested = (f"The tree was tested against the conditions for its reduction to an equivalent cylinder "
+              f"(Rall 1962; Rall 1964), each within a relative tolerance of {100 * eq['tolerance']:g} %: "
+              f"{_rule_clause(eq)}; {_terminal_clause(eq)}; {_ends_clause(eq)}.")
+    verdict = f"The tree {'met' if eq['meets_conditions'] else 'did not meet'} these conditions."
+    how_l = ("the largest terminal X, any length giving the same cylinder with infinite ends"
+             if cyl["end"] == "infinite" else "the membrane-area-weighted mean of the terminal X")
     x = cmp_["electrotonic_distance"]
-    err = cmp_["soma_to_site"]["relative_error"]
-    if err is None:
-        return f"had no point at the synapse's X = {x:.3g}, which lies beyond its end"
-    return f"the soma→synapse attenuation at X = {x:.3g} by {_pct(err)}"
+    clauses = [
+        _error_clause(_lower_first(label("soma_input_resistance_Mohm", rec)),
+                      cmp_["soma_input_resistance_Mohm"]["relative_error"]),
+        _error_clause(_lower_first(label("transfer_resistance_Mohm", rec)),
+                      cmp_["transfer_resistance_Mohm"]["relative_error"]),
+        _error_clause(f"{_lower_first(label('attenuation.steady_state.soma_to_site', rec))}, at the synapse's "
+                      f"X = {x:.3g}", cmp_["soma_to_site"]["relative_error"]),
+    ]
+    said = _and([c for c in clauses if c is not None], limit=10)
+    if cmp_["site_beyond_cylinder"]:
+        said += (f", and had no point at the synapse's X = {x:.3g}, which lies beyond its end, so it gives no "
+                 f"transfer resistance or voltage ratio for the synapse")
+    cylinder = (f"At steady state, the equivalent cylinder ({_plain('d_[eq] = (Σd_[stem]^[3/2])^[2/3]')} = "
+                f"{cyl['diameter_um']:.3g} {_unit('equivalent_cylinder.cylinder.diameter_um')}, electrotonic length L = {cyl['electrotonic_length']:.3g}, {how_l}) {said}; "
+                f"it does not give the {_lower_first(label('site_input_resistance_Mohm', rec))} or the "
+                f"{_lower_first(label('attenuation.steady_state.site_to_soma', rec))}, since a point on it stands "
+                f"for input spread over every branch at the same X, and these were taken from the full tree.")
+    return " ".join((tested, verdict, cylinder))

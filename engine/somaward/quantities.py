@@ -31,7 +31,8 @@ Examples
 import re
 from dataclasses import dataclass
 
-__all__ = ["Quantity", "QUANTITIES", "TERMS", "END_CONDITIONS", "TABLES", "CAUTIONS", "RECORDING_SITES",
+__all__ = ["Quantity", "QUANTITIES", "CYLINDER_CONSTANTS", "TERMS", "END_CONDITIONS", "TABLES", "CAUTIONS",
+           "RECORDING_SITES",
            "canonical_key", "quantity", "label", "unit", "definition", "format_value", "render_markup",
            "latex_escape", "table_rows", "vocabulary", "input_fields", "input_label"]
 
@@ -345,6 +346,23 @@ _LIST += [
 QUANTITIES = {q.key: q for q in _LIST}
 if len(QUANTITIES) != len(_LIST):                       # pragma: no cover (a typo in the table above)
     raise RuntimeError("quantities: a key is defined twice")
+
+# The numbers `somaward constants` prints for one uniform cylinder. They are not report keys (that
+# command solves no scenario), so they live apart from QUANTITIES; same fields, same markup.
+CYLINDER_CONSTANTS = {_c.key: _c for _c in [
+    _q("lambda_um", "Space constant λ", "µm", "λ = √(R_[m]·d/(4R_[i])) (Hodgkin & Rushton 1946; Rall 1977).", 6),
+    _q("tau_m_ms", "Membrane time constant τ_[m]", "ms", QUANTITIES["tau_m_ms"].definition, 6),
+    _q("input_resistance_infinite_Mohm", "Input resistance of a semi-infinite cylinder R_[∞]", "MΩ",
+       "R_[∞] = (2/π)·√(R_[m]·R_[i])·d^[−3/2]: the input resistance at the end of a cylinder of the same "
+       "diameter that goes on for ever (Rall 1959).", 6),
+    _q("electrotonic_length", "Electrotonic length L", "", "L = ℓ/λ: the cylinder's length over its space constant.",
+       6),
+    _q("input_resistance_sealed_Mohm", "Input resistance, far end sealed, R_[∞]·coth L", "MΩ",
+       "Input resistance at one end of the cylinder when no current leaves its far end (Rall 1959).", 6),
+    _q("input_resistance_killed_Mohm", "Input resistance, far end killed, R_[∞]·tanh L", "MΩ",
+       "Input resistance at one end of the cylinder when its far end is held at the resting potential, V = 0 "
+       "(Rall 1959).", 6),
+]}
 
 TERMS = {
     "attenuation": ("Attenuation", "The loss of voltage between two sites of the cell, in either direction."),
