@@ -150,3 +150,11 @@ def test_plain_messages_use_the_field_label(edit, path, plain):
     assert err.value.path == path
     assert err.value.plain.startswith(plain), err.value.plain
     assert "\n" not in err.value.plain and not re.search(r"\[\d+\]", err.value.plain)
+
+
+def test_a_branch_id_is_text_not_markup():
+    """A branch id goes into a label after the markup is read, escaped for each form."""
+    bid = "a_[x]^[y]&<b>{rec}"
+    assert q.label("lambda_um.*", item=bid) == f"Space constant λ of branch {bid}"
+    assert q.label("lambda_um.*", form="html", item=bid).endswith("a_[x]^[y]&amp;&lt;b&gt;{rec}")
+    assert q.label("lambda_um.*", form="latex", item=bid).endswith(r"a\_[x]\textasciicircum{}[y]\&<b>\{rec\}")

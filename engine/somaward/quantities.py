@@ -492,26 +492,26 @@ def render_markup(text, form="plain", recording_site="soma", item=None):
     """
     if recording_site not in RECORDING_SITES:
         raise ValueError(f"recording_site: must be 'soma' or 'root', got {recording_site!r}")
-    text = text.replace("{rec}", recording_site)
-    if item is not None:
-        text = text.replace("{item}", str(item))
+    # A branch id is the user's text: it goes in after the markup is read, escaped for the form.
+    text = text.replace("{rec}", recording_site).replace("{item}", "\x00")
     if form == "plain":
-        return _MARK.sub(lambda m: f"{m.group(1)}{m.group(2)}", text)
-    if form == "html":
-        parts, pos = [], 0
-        for m in _MARK.finditer(text):
-            tag = "sub" if m.group(1) == "_" else "sup"
-            parts += [_html_escape(text[pos:m.start()]), f"<{tag}>{_html_escape(m.group(2))}</{tag}>"]
-            pos = m.end()
-        return "".join(parts) + _html_escape(text[pos:])
-    if form == "latex":
-        parts, pos = [], 0
-        for m in _MARK.finditer(text):
-            cmd = "textsubscript" if m.group(1) == "_" else "textsuperscript"
-            parts += [latex_escape(text[pos:m.start()]), f"\\{cmd}{{{latex_escape(m.group(2))}}}"]
-            pos = m.end()
-        return "".join(parts) + latex_escape(text[pos:])
-    raise ValueError(f"form: must be 'plain', 'html' or 'latex', got {form!r}")
+        out = _MARK.sub(lambda m: f"{m.group(1)}{m.group(2)}", text)
+        escape = str
+    elif form == "html":
+        out, escape = _render(text, _html_escape, lambda sub, t: f"<{'sub' if sub else 'sup'}>{t}</{'sub' if sub else 'sup'}>"), _html_escape
+    elif form == "latex":
+        out, escape = _render(text, latex_escape, lambda sub, t: f"\\text{'sub' if sub else 'super'}script{{{t}}}"), latex_escape
+    else:
+        raise ValueError(f"form: must be 'plain', 'html' or 'latex', got {form!r}")
+    return out.replace("\x00", "{item}" if item is None else escape(str(item)))
+
+
+def _render(text, escape, wrap):
+    parts, pos = [], 0
+    for m in _MARK.finditer(text):
+        parts += [escape(text[pos:m.start()]), wrap(m.group(1) == "_", escape(m.group(2)))]
+        pos = m.end()
+    return "".join(parts) + escape(text[pos:])
 
 
 def label(key, recording_site="soma", form="plain", item=None):

@@ -68,7 +68,7 @@ def geometry_warnings(branches, soma=None):
     for i, b in enumerate(branches):
         for s in b.get("cylinders", [b]):
             if _outside(s["diameter"], DIAMETER_USUAL):
-                odd.append(f"branches[{i}] ({b['id']}): {s['diameter']:g} µm")
+                odd.append(f"branch {b['id']!r}: {s['diameter']:g} µm")
                 break
     if odd:
         more = f" and {len(odd) - 3} more" if len(odd) > 3 else ""
