@@ -1,4 +1,4 @@
-"""C6 of ../shared/checks.md: sympy verifies the closed forms of one cylinder symbolically.
+"""C6 of docs/checks.md: sympy verifies the closed forms of one cylinder symbolically.
 
 Independent library: sympy. In electrotonic units (X = x/λ) the Laplace-transformed cable
 equation is d²V/dX² = k²V with k = √(1 + sτ) (Rall 1959, Exp Neurol 1:491; Rall 1977); at DC

@@ -1,4 +1,4 @@
-"""S1–S4, S3b and S8 of ../shared/checks.md: one cylinder, no soma, through ``solve``.
+"""S1–S4, S3b and S8 of docs/checks.md: one cylinder, no soma, through ``solve``.
 
 Test cable (invented): d = 1 µm, Rm = 20 000 Ω·cm², Ri = 200 Ω·cm, Cm = 1 µF/cm², so λ = 500 µm
 and R∞ = (2/π)√(Rm·Ri)·d^(−3/2) = 1273.2395… MΩ (C2, C4). Without a soma the recording site is

@@ -1,4 +1,4 @@
-"""Rall's equivalent cylinder (engine/somaward/equivalent.py): S5 of ../shared/checks.md and more.
+"""Rall's equivalent cylinder (engine/somaward/equivalent.py): S5 of docs/checks.md and more.
 
 Every tree here is invented for these tests (generated from a seed; no published cell). The
 trees that meet the conditions are built so by construction: each child's diameter takes a

@@ -1,4 +1,4 @@
-"""C1–C5 and F1 of ../shared/checks.md: cable constants of a uniform cylinder.
+"""C1–C5 and F1 of docs/checks.md: cable constants of a uniform cylinder.
 
 Every reference value in checks.md marked *computed* was worked out from the formula, not quoted
 from a paper: the formula (with the paper that gives it) is the source, and each number is also

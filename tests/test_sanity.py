@@ -1,7 +1,7 @@
 """Plausibility warnings: odd but legal values warn, never reject.
 
 Ranges: common practice, no single source (Ri ≈ 70–300 Ω·cm; Rm ≈ 5 000–200 000 Ω·cm²; dendrite
-diameters 0.3–10 µm; whole-neuron L ≈ 0.5–1.5), as collected in ../shared/checks.md. The
+diameters 0.3–10 µm; whole-neuron L ≈ 0.5–1.5), as collected in docs/checks.md. The
 whole-cell slip (MΩ entered as Rm, pF as Cm) is the frequent error checks.md names.
 """
 

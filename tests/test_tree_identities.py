@@ -1,4 +1,4 @@
-"""S5, S6, S7, S9, F2, F3 and centroid delays of ../shared/checks.md, on branched trees.
+"""S5, S6, S7, S9, F2, F3 and centroid delays of docs/checks.md, on branched trees.
 
 All trees and membrane values here are invented for the tests. References are closed forms from
 the papers named beside each test, or identities derived in the docstrings, evaluated with
