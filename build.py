@@ -29,6 +29,7 @@ import http.server
 import io
 import json
 import os
+import re
 import shutil
 import subprocess
 import sys
@@ -307,12 +308,28 @@ def static_sources(out: Path) -> None:
             write(out / rel, path.read_bytes())
 
 
+ENGINE_TAGS = re.compile(r"</?su[bp]>")
+
+
+def engine_markup(html: str):
+    """A label or definition from the engine's vocabulary (HTML holding text, <sub> and <sup>
+    only; ``quantities.render_markup`` escapes the text) for a template; anything else is a
+    build error, so no other markup can reach the page this way."""
+    import markupsafe
+
+    rest = ENGINE_TAGS.sub("", str(html))
+    if "<" in rest or ">" in rest:
+        raise BuildError(f"the engine's label {html!r} holds markup other than <sub> and <sup>")
+    return markupsafe.Markup(str(html))
+
+
 def render(name: str, out_path: Path, context: dict) -> None:
     import jinja2
 
     env = jinja2.Environment(loader=jinja2.FileSystemLoader(SRC),
                              undefined=jinja2.StrictUndefined, autoescape=name.endswith(".html.j2"),
                              keep_trailing_newline=True)
+    env.filters["engine_markup"] = engine_markup
     try:
         text = env.get_template(name).render(**context)
     except jinja2.TemplateError as exc:
@@ -326,6 +343,26 @@ def file_hashes(out: Path) -> dict[str, str]:
             for p in sorted(out.rglob("*")) if p.is_file()}
 
 
+def script_json(data) -> str:
+    """JSON that is safe inside a <script type="application/json"> element."""
+    return json.dumps(data, ensure_ascii=False).replace("<", "\\u003c").replace(">", "\\u003e").replace("&", "\\u0026")
+
+
+def engine_vocabulary() -> dict:
+    """The engine's words for the page: ``somaward.quantities.vocabulary`` for a report recorded
+    at the soma and at the root (labels, units, definitions, precision, terms, end conditions,
+    tables, cautions and the scenario's input fields). Read from the engine being packed, in a
+    fresh interpreter, so that the page's words are the wheel's."""
+    code = ("import json, sys; from somaward import quantities as q; "
+            "json.dump({rec: q.vocabulary(rec) for rec in q.RECORDING_SITES}, sys.stdout, ensure_ascii=False)")
+    env = dict(os.environ, PYTHONPATH=os.pathsep.join(filter(None, [str(ROOT / "engine"), os.environ.get("PYTHONPATH")])))
+    proc = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, env=env, cwd=ROOT)
+    if proc.returncode != 0:
+        last = (proc.stderr.strip().splitlines() or ["no output"])[-1]
+        raise BuildError(f"reading the engine's vocabulary (somaward.quantities) failed: {last}")
+    return json.loads(proc.stdout)
+
+
 def demo_json() -> str:
     """The invented demo cell (the branch table's starting content), as JSON that is safe
     inside a <script type="application/json"> element."""
@@ -334,7 +371,7 @@ def demo_json() -> str:
         data = json.loads(path.read_text(encoding="utf-8"))
     except (OSError, ValueError) as exc:
         raise BuildError(f"demo scenario {path}: {exc}") from None
-    return json.dumps(data, ensure_ascii=False).replace("<", "\\u003c").replace(">", "\\u003e").replace("&", "\\u0026")
+    return script_json(data)
 
 
 def csp(cdn: bool) -> str:
@@ -352,6 +389,7 @@ def build(out: Path, pyodide_dir: Path | None = None, cdn: bool = False) -> dict
     lock = source.lock if source else json.loads(
         PyodideSource(None).core_bytes("pyodide-lock.json"))
     wheels = python_wheels()
+    vocabulary = engine_vocabulary()
     if out.exists():
         shutil.rmtree(out)
     static_sources(out)
@@ -375,7 +413,9 @@ def build(out: Path, pyodide_dir: Path | None = None, cdn: bool = False) -> dict
               "bootTimeoutMs": 90000}
     context = {"build_hash": build_hash, "csp": csp(cdn), "config_json": json.dumps(config),
                "pyodide_version": PYODIDE_VERSION, "precache": sorted(hashes),
-               "sections": SECTIONS, "demo_json": demo_json(),
+               "sections": SECTIONS, "demo_json": demo_json(), "vocabulary": vocabulary["soma"],
+               "inputs": vocabulary["soma"]["inputs"],
+               "vocabulary_json": script_json(vocabulary),
                "engine_version": wheels[0]["entry"]["version"]}
     render("index.html.j2", out / "index.html", context)
     versioned = ("css/page.css", "js/file-notice.js", "js/main.js", "js/worker.js",

@@ -1,115 +1,136 @@
 // SVG plots of the report, drawn with Observable Plot (vendored by build.py, pinned and
 // checked by SHA-256). Both libraries are UMD builds; imported here for their side effect
 // they define globalThis.d3 and globalThis.Plot, in this order.
+// Every axis label, legend entry and caption is the engine's label of the key plotted
+// (render.js); every colour has one meaning (palette.js); each figure keeps the stamp and the
+// caution of the report it was drawn from, for its download (figures.js).
 import "../vendor/d3.min.js";
 import "../vendor/plot.umd.min.js";
+import { vocabularyFor } from "./vocabulary.js";
+import { el, labelAxis, labelInSentence, labelNode, legend, pick, quantityLine } from "./render.js";
+import { COLOURS } from "./palette.js";
+import { stampFigure } from "./figures.js";
 
 const Plot = globalThis.Plot;
 
-// groups (optional): one label per point; a line is drawn per series and group (a tree's
-// map has one run of points per branch, which must not be joined end to start).
-function series(name, xs, ys, groups) {
+// Points of one series: x and y lists of the report; groups (optional): one label per point,
+// a line is drawn per group (a tree's map has one run of points per branch, which must not be
+// joined end to start).
+export function points(xs, ys, groups) {
   const rows = [];
   for (let i = 0; i < xs.length; i++) {
-    if (Number.isFinite(xs[i]) && Number.isFinite(ys[i])) {
-      rows.push({ x: xs[i], y: ys[i], series: name, z: groups ? `${name}\u0000${groups[i]}` : name });
-    }
+    if (Number.isFinite(xs[i]) && Number.isFinite(ys[i])) rows.push({ x: xs[i], y: ys[i], z: groups ? groups[i] : "" });
   }
   return rows;
 }
 
-// One colour per origin of the signal, the same in every plot: the synapse's series come
-// first (orange), the soma's second (blue).
-const PALETTE = ["#c2571a", "#1b6ca8", "#3d8b37"];
-
-function chart(container, { rows, x, y, title, available }) {
-  const names = [...new Set(rows.map((r) => r.series))];
-  const width = Math.max(280, Math.min(640, available ?? (container.clientWidth || 480)));
-  const svg = Plot.plot({
+// An Observable Plot drawing with the page's style; axis labels set afterwards from the
+// vocabulary (labelAxis), so Plot gets a placeholder.
+export function plotSVG({ width, height, x = {}, y = {}, marks, title }) {
+  return Plot.plot({
     width,
-    height: Math.round(width * 0.58),
+    height,
     marginLeft: 56,
     marginBottom: 46,
     style: { fontSize: "12px", background: "transparent" },
-    x: { label: x.label, type: x.type || "linear", grid: true, labelOffset: 40,
-      tickFormat: x.type === "log" ? "~g" : undefined },
-    y: { label: y.label, type: y.type || "linear", grid: true, domain: y.domain, nice: true },
-    color: { legend: true, domain: names, range: PALETTE.slice(0, names.length) },
-    marks: [
-      Plot.line(rows, { x: "x", y: "y", z: "z", stroke: "series", strokeWidth: 2 }),
-      Plot.ruleY(y.rule === undefined ? [] : [y.rule]),
-    ],
+    x: { label: "x", grid: true, labelOffset: 40, labelAnchor: "right", ...x },
+    y: { label: "y", grid: true, labelAnchor: "top", ...y },
+    color: { type: "identity" },
+    marks,
     ariaLabel: title,
   });
-  container.replaceChildren(svg);
 }
 
-function profile(el, report, available) {
-  const p = report.path_profile;
-  chart(el, {
-    available,
-    title: "voltage along the path",
-    rows: [
-      ...series("input at the synapse", p.path_distance_um, p.input_at_site),
-      ...series("input at the soma", p.path_distance_um, p.input_at_soma),
-    ],
-    x: { label: "distance from the soma along the path (µm) →" },
-    y: { label: "↑ V / V at the input point", domain: [0, 1], rule: 0 },
+// Draw `series` (each {xs, ys, groups?, colour, labelKey, dashed?}) into `holder`, with the
+// axes labelled from xKey and yKey and a legend of the series' labels.
+function chart(holder, vocab, { series, xKey, yKey, xType, yDomain, rule, available }) {
+  const width = Math.max(280, Math.min(640, available ?? (holder.clientWidth || 480)));
+  const marks = series.map((s) => Plot.line(points(s.xs, s.ys, s.groups), { x: "x", y: "y", z: "z", stroke: s.colour,
+    strokeWidth: 2, strokeDasharray: s.dashed ? "7,4" : undefined }));
+  if (rule !== undefined) marks.push(Plot.ruleY([rule]));
+  const svg = plotSVG({
+    width,
+    height: Math.round(width * 0.58),
+    x: { type: xType || "linear", tickFormat: xType === "log" ? "~g" : undefined },
+    y: { domain: yDomain, nice: true },
+    marks,
+    title: holder.closest("figure")?.querySelector(".caption-text")?.textContent || "",
   });
+  labelAxis(svg, "x", vocab, xKey);
+  labelAxis(svg, "y", vocab, yKey);
+  holder.replaceChildren(legend(vocab, series.map((s) => ({ colour: s.colour, labelKey: s.labelKey, dashed: s.dashed }))), svg);
 }
 
-function map(el, report, available) {
-  const m = report.tree_map;
-  chart(el, {
-    available,
-    title: "attenuation versus distance",
-    rows: [
-      ...series("synapse here → soma", m.path_distance_um, m.site_to_soma, m.branch),
-      ...series("soma → here", m.path_distance_um, m.soma_to_site, m.branch),
-    ],
-    x: { label: "distance of the point from the soma (µm) →" },
-    y: { label: `↑ V_out / V_in at ${m.frequency_hz} Hz`, domain: [0, 1], rule: 0 },
-  });
+// "<what> against <x>" from the engine's labels; `define`: the y label shows its definition.
+export function setCaption(figure, vocab, yKey, xKey, { define = false, extra = [] } = {}) {
+  const text = figure.querySelector(".caption-text");
+  text.replaceChildren(labelNode(vocab, yKey, { define }), " against ", labelInSentence(vocab, xKey), ...extra);
 }
 
-function gain(el, report, available) {
-  const f = report.frequency_response;
-  chart(el, {
-    available,
-    title: "attenuation versus frequency",
-    rows: [
-      ...series("synapse → soma", f.frequencies_hz, f.site_to_soma.magnitude),
-      ...series("soma → synapse", f.frequencies_hz, f.soma_to_site.magnitude),
-    ],
-    x: { label: "frequency (Hz) →", type: "log" },
-    y: { label: "↑ |V_out / V_in|", domain: [0, 1], rule: 0 },
-  });
-}
+const FR = "frequency_response";
 
-function delay(el, report, available) {
-  const f = report.frequency_response;
-  chart(el, {
-    available,
-    title: "delay versus frequency",
-    rows: series("phase delay synapse → soma", f.frequencies_hz, f.site_to_soma.phase_delay_ms),
-    x: { label: "frequency (Hz) →", type: "log" },
-    y: { label: "↑ phase delay (ms)", rule: 0 },
-  });
-}
-
-const PLOTS = { "plot-profile": profile, "plot-map": map, "plot-gain": gain, "plot-delay": delay };
+const PLOTS = {
+  "plot-profile": (holder, vocab, report, available) => {
+    const p = report.path_profile;
+    setCaption(holder.closest("figure"), vocab, "terms.voltage_ratio", "path_profile.path_distance_um");
+    chart(holder, vocab, {
+      available, xKey: "path_profile.path_distance_um", yKey: "terms.voltage_ratio", yDomain: [0, 1], rule: 0,
+      series: [
+        { xs: p.path_distance_um, ys: p.input_at_site, colour: COLOURS.synapse, labelKey: "path_profile.input_at_site" },
+        { xs: p.path_distance_um, ys: p.input_at_soma, colour: COLOURS.soma, labelKey: "path_profile.input_at_soma" },
+      ],
+    });
+  },
+  "plot-map": (holder, vocab, report, available) => {
+    const m = report.tree_map;
+    setCaption(holder.closest("figure"), vocab, "terms.voltage_ratio", "tree_map.path_distance_um",
+      { extra: [" (", quantityLine(vocab, "tree_map.frequency_hz", m.frequency_hz), ")"] });
+    chart(holder, vocab, {
+      available, xKey: "tree_map.path_distance_um", yKey: "terms.voltage_ratio", yDomain: [0, 1], rule: 0,
+      series: [
+        { xs: m.path_distance_um, ys: m.site_to_soma, groups: m.branch, colour: COLOURS.point, labelKey: "tree_map.site_to_soma" },
+        { xs: m.path_distance_um, ys: m.soma_to_site, groups: m.branch, colour: COLOURS.soma, labelKey: "tree_map.soma_to_site" },
+      ],
+    });
+  },
+  "plot-gain": (holder, vocab, report, available) => {
+    const f = report[FR];
+    setCaption(holder.closest("figure"), vocab, "terms.voltage_ratio", `${FR}.frequencies_hz`);
+    chart(holder, vocab, {
+      available, xKey: `${FR}.frequencies_hz`, yKey: "terms.voltage_ratio", xType: "log", yDomain: [0, 1], rule: 0,
+      series: [
+        { xs: f.frequencies_hz, ys: f.site_to_soma.magnitude, colour: COLOURS.synapse, labelKey: `${FR}.site_to_soma.magnitude` },
+        { xs: f.frequencies_hz, ys: f.soma_to_site.magnitude, colour: COLOURS.soma, labelKey: `${FR}.soma_to_site.magnitude` },
+      ],
+    });
+  },
+  "plot-delay": (holder, vocab, report, available) => {
+    const f = report[FR];
+    const key = `${FR}.site_to_soma.phase_delay_ms`;
+    setCaption(holder.closest("figure"), vocab, key, `${FR}.frequencies_hz`, { define: true });
+    chart(holder, vocab, {
+      available, xKey: `${FR}.frequencies_hz`, yKey: key, xType: "log", rule: 0,
+      series: [{ xs: f.frequencies_hz, ys: pick(report, key), colour: COLOURS.synapse, labelKey: key }],
+    });
+  },
+};
 
 export function renderPlots(root, report) {
+  const vocab = vocabularyFor(report);
   // Every width is read before any plot is replaced: one layout, not one per plot.
   const holders = Object.entries(PLOTS).map(([id, draw]) => {
-    const el = root.querySelector(`#${id} .plot`);
-    return [el, draw, el.clientWidth || 480];
+    const holder = root.querySelector(`#${id} .plot`);
+    return [holder, draw, holder.clientWidth || 480];
   });
-  for (const [el, draw, available] of holders) {
+  for (const [holder, draw, available] of holders) {
+    const figure = holder.closest("figure");
     try {
-      draw(el, report, available);
+      draw(holder, vocab, report, available);
+      stampFigure(figure, report);
     } catch (err) {
-      el.textContent = `This plot could not be drawn: ${err.message}`;
+      console.error(err);
+      stampFigure(figure, null);
+      holder.replaceChildren(el("p", "This plot could not be drawn; reload the page to try again.", "hint"));
     }
   }
 }

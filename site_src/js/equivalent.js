@@ -1,132 +1,47 @@
-// The equivalent-cylinder section: draws report.equivalent_cylinder (verdict, the 3/2-rule table,
-// diameter steps, terminals, the cylinder, the full-tree-versus-cylinder comparison at the
-// synapse) and a plot of soma→site attenuation versus X. Every number comes from the report;
+// The equivalent-cylinder section: draws report.equivalent_cylinder (verdict and conditions, the
+// 3/2-rule table, diameter steps, terminals, the cylinder, the full tree against the cylinder at
+// the synapse) and a plot of the voltage ratio against X, tree branches against the cylinder.
+// Every number, label and unit comes from the report and the engine's vocabulary (render.js);
 // nothing here computes physics.
-import "../vendor/d3.min.js";
-import "../vendor/plot.umd.min.js";
-import { numberButton, roundForReading, toggleFull } from "./format.js";
+import { plotSVG, points } from "./charts.js";
+import { vocabularyFor } from "./vocabulary.js";
+import {
+  definitionOf, el, formatValue, keyTable, labelAxis, labelInSentence, labelNode, legend, listTable, plainText, quantityLine,
+  valueWithUnit,
+} from "./render.js";
+import { COLOURS } from "./palette.js";
+import { stampFigure } from "./figures.js";
 
 const Plot = globalThis.Plot;
-const ROOT = "equivalent_cylinder";
-const TREE_SERIES = "full tree (one line per branch)";
-const CYL_SERIES = "equivalent cylinder";
+const EQ = "equivalent_cylinder";
+const CMP = `${EQ}.comparison`;
 
-function el(tag, content, className) {
-  const node = document.createElement(tag);
-  if (className) node.className = className;
-  if (content === undefined || content === null) return node;
-  for (const part of Array.isArray(content) ? content : [content]) {
-    node.append(part instanceof Node ? part : String(part));
-  }
-  return node;
+// Marked by a sign and a word, never by colour alone.
+function mark(ok) {
+  return el("span", ok ? "✓ met" : "✗ broken", "eq-mark");
 }
 
-function num(value, key) {
-  return numberButton(value, `${ROOT}.${key}`);
-}
+const CONDITIONS = ["three_halves_rule_at_branch_points", "three_halves_rule_at_cylinder_joins",
+  "equal_terminal_electrotonic_distance", "uniform_membrane", "like_ends"];
 
-// A signed percentage of a fraction from the report, built like format.js's numberButton: the
-// rounded value shown, the full value one click (or Enter) away; data-value keeps the report's
-// own number (the fraction).
-function percent(fraction, key) {
-  if (fraction === null || fraction === undefined) return num(fraction, key);
-  const p = 100 * fraction;
-  const sign = p > 0 ? "+" : p < 0 ? "−" : "";
-  const rounded = `${sign}${roundForReading(Math.abs(p))} %`;
-  const full = `${p} %`;
-  const button = el("button", rounded, "num");
-  button.type = "button";
-  Object.assign(button.dataset, { key: `${ROOT}.${key}`, value: String(fraction), rounded, unit: "percent" });
-  return toggleFull(button, rounded, full);
-}
-
-// The tolerance as the person typed it, in per cent (5 %, 2.5 %), without rounding noise.
-function tolText(tol) {
-  return `${Number((100 * tol).toPrecision(6))} %`;
-}
-
-// Within tolerance: a word and a sign, never colour alone.
-function okCell(ok, words = ["yes", "no"]) {
-  const td = el("td", ok ? `✓ ${words[0]}` : `✗ ${words[1]}`, ok ? "eq-ok" : "eq-bad");
-  return td;
-}
-
-function markRow(tr, ok) {
-  tr.dataset.ok = String(ok);
-  if (!ok) tr.classList.add("eq-fail");
-  return tr;
-}
-
-function table(caption, headers, rows, emptyText, className = "") {
-  const t = el("table", null, `numbers eq-table ${className}`.trim());
-  t.append(el("caption", caption));
-  const head = el("tr");
-  for (const h of headers) {
-    const th = el("th", h);
-    th.scope = "col";
-    head.append(th);
-  }
-  t.append(el("thead", head));
-  const tbody = el("tbody");
-  if (rows.length) tbody.append(...rows);
-  else {
-    const td = el("td", emptyText, "eq-empty");
-    td.colSpan = headers.length;
-    tbody.append(el("tr", td));
-  }
-  t.append(tbody);
-  // Wide tables scroll inside their box on narrow screens (and by keyboard: the box is focusable).
-  const box = el("div", t, "eq-scroll");
-  box.tabIndex = 0;
-  box.setAttribute("role", "region");
-  box.setAttribute("aria-label", caption);
-  return box;
-}
-
-function joinNodes(nodes, sep = ", ") {
-  const out = [];
-  nodes.forEach((n, i) => {
-    if (i) out.push(sep);
-    out.push(n);
-  });
-  return out;
-}
-
-function ratioHeader() {
-  const th = el("span");
-  th.append("d", el("sub", "parent"), el("sup", "3/2"), " / Σ d", el("sub", "child"), el("sup", "3/2"));
-  return th;
-}
-
-const CONDITIONS = [
-  ["three_halves_rule_at_branch_points", "3/2 power rule at every branch point"],
-  ["three_halves_rule_at_cylinder_joins", "no diameter step inside a branch (a step is checked as a branch point with one child)"],
-  ["equal_terminal_electrotonic_distance", "every terminal at the same electrotonic distance X from the soma"],
-  ["uniform_membrane", "the same membrane and cytoplasm everywhere (this input has one set for the whole tree)"],
-  ["like_ends", () => ["alike ends: all sealed, all killed, all going on for ever, or loads in proportion to d",
-    el("sup", "3/2")]],
-];
-
-function verdict(eq) {
+function verdict(vocab, report) {
+  const eq = report[EQ];
   const met = eq.meets_conditions;
   const box = el("div", null, `eq-verdict ${met ? "eq-verdict-met" : "eq-verdict-not"}`);
   box.id = "eq-verdict";
   box.dataset.verdict = met ? "met" : "not-met";
-  const head = met
-    ? `✓ Yes: within a tolerance of ${tolText(eq.tolerance)}, this tree meets every condition for the reduction.`
-    : `✗ No: at a tolerance of ${tolText(eq.tolerance)}, this tree breaks the conditions for the reduction; ` +
-      "the cylinder below is an approximation, and the comparison shows by how much.";
-  box.append(el("p", head, "eq-verdict-head"));
+  box.append(el("p", [quantityLine(vocab, `${EQ}.meets_conditions`, met), el("br"),
+    quantityLine(vocab, `${EQ}.tolerance`, eq.tolerance)], "eq-verdict-head"));
   const list = el("ul", null, "eq-conditions");
-  for (const [key, label] of CONDITIONS) {
-    const ok = eq.conditions[key];
-    const text = typeof label === "function" ? label() : [label];
-    if (key === "equal_terminal_electrotonic_distance" && !eq.conditions.equal_terminal_electrotonic_distance_required) {
-      text.push(" — not needed here, every end goes on for ever");
+  for (const name of CONDITIONS) {
+    const key = `${EQ}.conditions.${name}`;
+    const ok = eq.conditions[name];
+    const li = el("li", [mark(ok), " ", labelNode(vocab, key, { define: true })]);
+    if (name === "equal_terminal_electrotonic_distance" && !eq.conditions.equal_terminal_electrotonic_distance_required) {
+      li.append(" — ", quantityLine(vocab, `${EQ}.conditions.equal_terminal_electrotonic_distance_required`, false));
     }
-    if (key === "like_ends") text.push(` — here: ${eq.end_condition}`);
-    const li = el("li", [el("span", ok ? "✓ met" : "✗ broken", "eq-mark"), " ", ...text]);
-    li.dataset.condition = key;
+    if (name === "like_ends") li.append(" — ", quantityLine(vocab, `${EQ}.end_condition`, eq.end_condition));
+    li.dataset.condition = name;
     li.dataset.ok = String(ok);
     if (!ok) li.classList.add("eq-fail");
     list.append(li);
@@ -135,261 +50,190 @@ function verdict(eq) {
   if (eq.messages.length) {
     const msgs = el("ul", null, "eq-messages");
     msgs.id = "eq-messages";
-    for (const m of eq.messages) msgs.append(el("li", m));
-    box.append(el("p", "What breaks them:", "eq-sub"), msgs);
+    eq.messages.forEach((m, i) => {
+      const li = el("li", m);
+      li.dataset.key = `${EQ}.messages[${i}]`;
+      msgs.append(li);
+    });
+    box.append(el("p", labelNode(vocab, `${EQ}.messages`), "eq-sub"), msgs);
   }
   return box;
 }
 
-// A table row whose first cell is a row header naming it.
-function headedRow(name) {
-  const tr = el("tr");
-  const th = el("th", name);
-  th.scope = "row";
-  tr.append(th);
-  return tr;
+function withId(node, id) {
+  node.id = id;
+  return node;
 }
 
-function branchPointTable(eq) {
-  const rows = eq.branch_points.map((r, i) => {
-    const k = `branch_points[${i}]`;
-    const tr = headedRow(r.parent);
-    tr.append(el("td", r.children.join(", ")),
-      el("td", num(r.parent_diameter_um, `${k}.parent_diameter_um`), "value"),
-      el("td", joinNodes(r.child_diameters_um.map((d, j) => num(d, `${k}.child_diameters_um[${j}]`))), "value"),
-      el("td", num(r.ratio, `${k}.ratio`), "value"),
-      el("td", percent(r.departure, `${k}.departure`), "value"),
-      okCell(r.ok));
-    return markRow(tr, r.ok);
-  });
-  const box = table(`3/2 power rule at each branch point (tolerance ${tolText(eq.tolerance)})`,
-    ["at the end of", "children", "d parent (µm)", "d children (µm)", ratioHeader(), "departure from 1",
-      "within tolerance"], rows, "none: an unbranched cable has no branch points to check");
-  box.id = "eq-branch-points";
-  return box;
+function caption(vocab, key) {
+  return labelNode(vocab, key);
 }
 
-function cylinderJoinTable(eq) {
-  const rows = eq.cylinder_joins.map((r, i) => {
-    const k = `cylinder_joins[${i}]`;
-    const tr = headedRow(r.branch);
-    tr.append(el("td", `cylinder ${r.cylinder - 1} → ${r.cylinder}`),
-      el("td", [num(r.diameter_before_um, `${k}.diameter_before_um`), " → ",
-        num(r.diameter_after_um, `${k}.diameter_after_um`)], "value"),
-      el("td", num(r.ratio, `${k}.ratio`), "value"),
-      el("td", percent(r.departure, `${k}.departure`), "value"),
-      okCell(r.ok));
-    return markRow(tr, r.ok);
-  });
-  const box = table("Diameter steps inside a branch (tapers)",
-    ["branch", "where", "d before → after (µm)", ["ratio of d", el("sup", "3/2")], "departure from 1",
-      "within tolerance"],
-    rows, "none: every branch keeps one diameter");
-  box.id = "eq-cylinder-joins";
-  return box;
+function branchPointTable(vocab, report) {
+  return withId(listTable(vocab, report, {
+    caption: caption(vocab, `${EQ}.branch_points`), list: `${EQ}.branch_points`, name: "branch_points",
+    columns: ["parent", "children", "parent_diameter_um", "child_diameters_um", "ratio", "departure", "ok"],
+    markRow: (r) => r.ok, empty: "—",
+  }), "eq-branch-points");
 }
 
-function terminalTable(eq) {
-  const rows = eq.terminals.map((r, i) => {
-    const k = `terminals[${i}]`;
-    const tr = headedRow(r.branch);
-    tr.append(el("td", num(r.electrotonic_distance, `${k}.electrotonic_distance`), "value"),
-      el("td", percent(r.departure, `${k}.departure`), "value"),
-      el("td", r.end_ok ? r.end : `${r.end} (unlike the others)`),
-      okCell(r.ok));
-    return markRow(tr, r.ok);
-  });
-  const box = table("Terminals: electrotonic distance X of each end from the soma",
-    ["terminal", "X at its end", "X / L − 1", "end", "within tolerance"], rows, "no terminals");
-  box.id = "eq-terminals";
-  const spread = el("p", ["Terminal X runs from ",
-    num(eq.terminal_electrotonic_distance_min, "terminal_electrotonic_distance_min"), " to ",
-    num(eq.terminal_electrotonic_distance_max, "terminal_electrotonic_distance_max"), ": a spread of ",
-    num(eq.terminal_electrotonic_distance_spread, "terminal_electrotonic_distance_spread"), " (",
-    percent(eq.terminal_electrotonic_distance_relative_spread, "terminal_electrotonic_distance_relative_spread"),
-    " of L)."], "eq-spread");
+function cylinderJoinTable(vocab, report) {
+  return withId(listTable(vocab, report, {
+    caption: caption(vocab, `${EQ}.cylinder_joins`), list: `${EQ}.cylinder_joins`, name: "cylinder_joins",
+    columns: ["branch", "cylinder", "diameter_before_um", "diameter_after_um", "ratio", "departure", "ok"],
+    markRow: (r) => r.ok, empty: "—",
+  }), "eq-cylinder-joins");
+}
+
+function terminalTable(vocab, report) {
+  const eq = report[EQ];
+  const box = withId(listTable(vocab, report, {
+    caption: "Terminals", list: `${EQ}.terminals`, name: "terminals",
+    columns: ["branch", "electrotonic_distance", "departure", "end", "end_ok", "ok"],
+    markRow: (r) => r.ok, empty: "—",
+  }), "eq-terminals");
+  const spread = el("p", null, "eq-spread");
   spread.id = "eq-spread";
+  ["terminal_electrotonic_distance_min", "terminal_electrotonic_distance_max", "terminal_electrotonic_distance_spread",
+    "terminal_electrotonic_distance_relative_spread"].forEach((k, i) => {
+    if (i) spread.append(el("br"));
+    spread.append(quantityLine(vocab, `${EQ}.${k}`, eq[k]));
+  });
   return [box, spread];
 }
 
-function cylinderTable(eq) {
-  const c = eq.cylinder;
-  const rows = [
-    [["Diameter d", el("sub", "eq"), " = (Σ d", el("sub", "stem"), el("sup", "3/2"), ")", el("sup", "2/3")],
-      num(c.diameter_um, "cylinder.diameter_um"), "µm"],
-    ["Electrotonic length L", num(c.electrotonic_length, "cylinder.electrotonic_length"), ""],
-    ["  range of the terminals' X", [num(c.electrotonic_length_min, "cylinder.electrotonic_length_min"), " – ",
-      num(c.electrotonic_length_max, "cylinder.electrotonic_length_max")], ""],
-    ["Space constant λ of the cylinder", num(c.lambda_um, "cylinder.lambda_um"), "µm"],
-    ["Length L·λ", num(c.length_um, "cylinder.length_um"), "µm"],
-    ["Far end", c.end, ""],
-    ["Stems joined at the soma", c.stems.join(", "), ""],
-  ].map(([label, value, unit]) => {
-    const th = el("th", label);
-    th.scope = "row";
-    return el("tr", [th, el("td", value, "value"), el("td", unit, "unit")]);
-  });
-  const box = table("The equivalent cylinder", ["quantity", "value", "unit"], rows, "");
-  box.id = "eq-cylinder";
-  return [box, el("p", `How L is chosen: ${c.length_rule}`, "hint"), el("p", `Tapers: ${c.taper_rule}`, "hint")];
+function ruleText(vocab, report, key) {
+  const value = report[EQ].cylinder[key];
+  return value ? el("p", quantityLine(vocab, `${EQ}.cylinder.${key}`, value), "hint") : null;
 }
 
-const COMPARED = [
-  ["soma_to_site", "Attenuation soma → synapse, V_synapse / V_soma", ""],
-  ["transfer_resistance_Mohm", "Transfer resistance synapse ↔ soma", "MΩ"],
-  ["soma_input_resistance_Mohm", "Input resistance at the soma", "MΩ"],
-];
+function cylinderTable(vocab, report) {
+  const keys = ["diameter_um", "electrotonic_length", "electrotonic_length_min", "electrotonic_length_max", "lambda_um",
+    "length_um", "end", "stems"].map((k) => `${EQ}.cylinder.${k}`);
+  const box = withId(keyTable(vocab, report, { caption: "The equivalent cylinder", keys, name: "cylinder" }), "eq-cylinder");
+  return [box, ruleText(vocab, report, "length_rule"), ruleText(vocab, report, "taper_rule")].filter(Boolean);
+}
 
-function comparisonTable(eq) {
-  const cmp = eq.comparison;
-  const rows = COMPARED.map(([key, label, unit]) => {
-    const v = cmp[key];
-    const th = el("th", label);
-    th.scope = "row";
-    const tr = el("tr", [th, el("td", num(v.tree, `comparison.${key}.tree`), "value"),
-      el("td", num(v.cylinder, `comparison.${key}.cylinder`), "value"),
-      el("td", percent(v.relative_error, `comparison.${key}.relative_error`), "value"),
-      el("td", unit, "unit")]);
-    tr.dataset.key = key;
-    return tr;
-  });
-  const caption = `Full tree versus cylinder at the synapse (X = ${roundForReading(cmp.electrotonic_distance)}, steady state)`;
-  const box = table(caption, ["quantity", "full tree", "cylinder", "error of the shortcut", "unit"], rows, "");
-  box.id = "eq-comparison";
-  const parts = [box, el("p", "Error of the shortcut = (cylinder − full tree) / full tree.", "hint")];
-  if (cmp.site_beyond_cylinder) {
-    const p = el("p", `The synapse lies at X = ${roundForReading(cmp.electrotonic_distance)}, beyond the end of ` +
-      `the cylinder at L = ${roundForReading(eq.cylinder.electrotonic_length)}: the cylinder has no point there, so ` +
-      "it gives no soma → synapse attenuation and no transfer resistance for this synapse. Only the input " +
-      "resistance at the soma can be compared.", "eq-beyond");
-    p.id = "eq-beyond";
+function comparisonTable(vocab, report) {
+  const cmp = report[EQ].comparison;
+  const keys = [`${CMP}.electrotonic_distance`];
+  for (const q of ["soma_to_site", "transfer_resistance_Mohm", "soma_input_resistance_Mohm"]) {
+    for (const c of ["tree", "cylinder", "relative_error"]) keys.push(`${CMP}.${q}.${c}`);
+  }
+  const parts = [withId(keyTable(vocab, report, { caption: "Full tree and equivalent cylinder at the synapse", keys,
+    name: "comparison", define: [`${CMP}.transfer_resistance_Mohm.tree`, `${CMP}.soma_input_resistance_Mohm.tree`] }),
+  "eq-comparison")];
+  if (cmp.note) {
+    const p = el("p", cmp.note, "hint");
+    p.dataset.key = `${CMP}.note`;
     parts.push(p);
+  }
+  if (cmp.site_beyond_cylinder) {
+    parts.push(withId(el("p", quantityLine(vocab, `${CMP}.site_beyond_cylinder`, true), "eq-beyond"), "eq-beyond"));
   }
   return parts;
 }
 
-function notGiven(eq) {
-  const ng = eq.comparison.not_given_by_cylinder;
+function notGiven(vocab, report) {
+  const ng = report[EQ].comparison.not_given_by_cylinder;
+  const keys = ["site_to_soma", "site_input_resistance_Mohm"].map((k) => `${CMP}.not_given_by_cylinder.${k}`);
   const box = el("div", null, "eq-not-given");
   box.id = "eq-not-given";
-  box.append(el("h3", "What the cylinder does not give"),
-    el("p", "A point at distance X on the cylinder stands for the same input spread over every branch at that X, " +
-      "not for one synapse on one branch. So the cylinder gives neither the synapse's own input resistance nor the " +
-      "attenuation from the synapse to the soma; use the full tree's values:"),
-    el("ul", [
-      el("li", ["Attenuation synapse → soma, V_soma / V_synapse: ",
-        num(ng.site_to_soma, "comparison.not_given_by_cylinder.site_to_soma")]),
-      el("li", ["Input resistance at the synapse: ",
-        num(ng.site_input_resistance_Mohm, "comparison.not_given_by_cylinder.site_input_resistance_Mohm"), " MΩ"]),
-    ]));
+  const note = el("p", ng.note ?? "");
+  note.dataset.key = `${CMP}.not_given_by_cylinder.note`;
+  box.append(el("h3", labelNode(vocab, `${CMP}.not_given_by_cylinder.note`)), note,
+    keyTable(vocab, report, { caption: "From the full tree", keys, name: "not_given" }));
   return box;
 }
 
-// --- the plot: soma→site attenuation versus X, tree branches against the cylinder ---------------
+// --- the plot: voltage ratio against X, tree branches against the cylinder -----------------------
 
-function treeRows(report) {
-  const m = report.tree_map;
-  const byBranch = new Map();
-  for (let i = 0; i < m.branch.length; i++) {
-    const x = m.electrotonic_distance[i], y = m.soma_to_site[i];
-    if (!Number.isFinite(x) || !Number.isFinite(y)) continue;
-    if (!byBranch.has(m.branch[i])) byBranch.set(m.branch[i], []);
-    byBranch.get(m.branch[i]).push({ x, y, branch: m.branch[i], series: TREE_SERIES });
-  }
-  // Drawing order only: each branch's points from its proximal to its distal end.
-  return [...byBranch.values()].flatMap((pts) => pts.sort((a, b) => a.x - b.x));
-}
+const TREE_KEY = "tree_map.soma_to_site";
+const CURVE_KEY = `${EQ}.cylinder.curve.soma_to_site`;
 
-function cylinderRows(curve) {
-  const rows = [];
-  curve.electrotonic_distance.forEach((x, i) => {
-    const y = curve.soma_to_site[i];
-    if (Number.isFinite(x) && Number.isFinite(y)) rows.push({ x, y, series: CYL_SERIES });
-  });
-  return rows;
-}
-
-function plotFigure(report, eq) {
+function plotFigure(vocab, report) {
   const fig = el("figure", null, "eq-plot");
   fig.id = "eq-plot";
-  fig.append(el("figcaption", "Soma → site attenuation versus electrotonic distance X: the tree's branches " +
-    "against the equivalent cylinder"), el("div", null, "plot"));
-  if (!eq.cylinder.curve) {
-    fig.append(el("p", "The report carries no curve for the cylinder (equivalent_cylinder.cylinder.curve), so only " +
-      "the tree is drawn.", "hint eq-plot-note"));
+  const text = el("span", [labelNode(vocab, "terms.voltage_ratio"), " against ",
+    labelInSentence(vocab, "terms.electrotonic_distance")], "caption-text");
+  fig.append(el("figcaption", text), el("div", null, "plot"));
+  if (report.tree_map.frequency_hz !== 0) {
+    fig.append(el("p", [quantityLine(vocab, "tree_map.frequency_hz", report.tree_map.frequency_hz),
+      ": the tree's map is not for a steady current, so it does not compare with the cylinder's curve here."],
+    "hint eq-plot-note"));
   }
-  const freq = report.tree_map.frequency_hz;
-  if (freq !== 0) {
-    fig.append(el("p", `The tree's map is at ${freq} Hz and the cylinder's curve at 0 Hz, so they are not ` +
-      "comparable here.", "hint eq-plot-note"));
-  }
-  fig.append(el("p", "Each grey line is one branch of the tree; the dashed line is the cylinder. The round dot " +
-    "marks the synapse on the tree, the diamond the cylinder's value at the same X. Where the tree meets the " +
-    "conditions, the lines fall on one another.", "hint"));
+  fig.append(el("p", "Where the tree meets the conditions, its branches' lines fall on the cylinder's.", "hint"));
   return fig;
 }
 
 // Drawn once the figure is in the page, so that its width is known.
-function drawPlot(holder, report, eq, available) {
+function drawPlot(holder, vocab, report, available) {
+  const eq = report[EQ];
   const curve = eq.cylinder.curve;
   const cmp = eq.comparison;
-  const syn = [{ x: cmp.electrotonic_distance, y: cmp.soma_to_site.tree, label: "synapse", symbol: "circle" }];
-  if (cmp.soma_to_site.cylinder !== null) {
-    syn.push({ x: cmp.electrotonic_distance, y: cmp.soma_to_site.cylinder, label: "", symbol: "diamond" });
+  // Drawing order only: each branch's points from its proximal to its distal end.
+  const byBranch = new Map();
+  for (const p of points(report.tree_map.electrotonic_distance, report.tree_map.soma_to_site, report.tree_map.branch)) {
+    if (!byBranch.has(p.z)) byBranch.set(p.z, []);
+    byBranch.get(p.z).push(p);
   }
-  const tree = treeRows(report);
-  const cyl = curve ? cylinderRows(curve) : [];
+  const tree = [...byBranch.values()].flatMap((pts) => pts.sort((a, b) => a.x - b.x));
+  const cyl = curve ? points(curve.electrotonic_distance, curve.soma_to_site) : [];
+  const syn = [{ x: cmp.electrotonic_distance, y: cmp.soma_to_site.tree, symbol: "circle" }];
+  if (cmp.soma_to_site.cylinder !== null) syn.push({ x: cmp.electrotonic_distance, y: cmp.soma_to_site.cylinder, symbol: "diamond" });
   // The y axis starts at the tenth below the lowest value drawn, so that the gap between tree and
   // cylinder can be seen; it always ends at 1.
   const lowest = Math.min(1, ...tree.map((d) => d.y), ...cyl.map((d) => d.y), ...syn.map((d) => d.y));
   const w = Math.max(280, Math.min(720, available || holder.clientWidth || 560));
-  const svg = Plot.plot({
+  const qx = definitionOf(vocab, "terms.electrotonic_distance"), qy = definitionOf(vocab, TREE_KEY);
+  const xName = plainText(qx.label_html), yName = plainText(qy.label_html);
+  const svg = plotSVG({
     width: w,
     height: Math.round(w * 0.6),
-    marginLeft: 56,
-    marginBottom: 46,
-    style: { fontSize: "12px", background: "transparent" },
-    x: { label: "electrotonic distance X from the soma →", grid: true, labelOffset: 40 },
-    y: { label: "↑ V_site / V_soma (input at the soma, 0 Hz)", grid: true,
-      domain: [Math.max(0, Math.floor(10 * lowest - 0.5) / 10), 1] },
-    color: { legend: true, domain: [TREE_SERIES, CYL_SERIES], range: ["#6f7a8a", "#c2571a"] },
+    y: { domain: [Math.max(0, Math.floor(10 * lowest - 0.5) / 10), 1] },
     marks: [
-      Plot.line(tree, { x: "x", y: "y", z: "branch", stroke: "series", strokeWidth: 1.6 }),
-      ...(curve ? [Plot.line(cyl, { x: "x", y: "y", stroke: "series", strokeWidth: 2.6,
-        strokeDasharray: "7,4" })] : []),
-      Plot.dot(syn, { x: "x", y: "y", r: 4.5, fill: "#1d2330", symbol: "symbol" }),
-      Plot.text(syn.slice(0, 1), { x: "x", y: "y", text: "label", dy: 14, fill: "#1d2330" }),
+      Plot.line(tree, { x: "x", y: "y", z: "z", stroke: COLOURS.tree, strokeWidth: 1.6 }),
+      ...(curve ? [Plot.line(cyl, { x: "x", y: "y", stroke: COLOURS.cylinder, strokeWidth: 2.6, strokeDasharray: "7,4" })] : []),
+      Plot.dot(syn, { x: "x", y: "y", r: 4.5, fill: COLOURS.synapse, stroke: "white", symbol: "symbol" }),
       Plot.tip(tree, Plot.pointer({ x: "x", y: "y",
-        title: (d) => `${d.branch}\nX ${roundForReading(d.x)}\nV ratio ${roundForReading(d.y)}` })),
+        title: (d) => `${d.z}\n${xName}: ${formatValue(d.x, qx)}\n${yName}: ${formatValue(d.y, qy)}` })),
     ],
-    ariaLabel: "soma to site attenuation versus electrotonic distance, tree and equivalent cylinder",
+    title: holder.closest("figure").querySelector(".caption-text").textContent,
   });
-  holder.replaceChildren(svg);
+  labelAxis(svg, "x", vocab, "terms.electrotonic_distance");
+  labelAxis(svg, "y", vocab, "terms.voltage_ratio");
+  const entries = [{ colour: COLOURS.tree, labelKey: TREE_KEY }];
+  if (curve) entries.push({ colour: COLOURS.cylinder, labelKey: CURVE_KEY, dashed: true });
+  entries.push({ colour: COLOURS.synapse, labelKey: `${CMP}.soma_to_site.tree`, dot: true });
+  holder.replaceChildren(legend(vocab, entries), svg);
 }
 
 export function renderEquivalent(container, report) {
-  const eq = report[ROOT];
+  const eq = report[EQ];
   if (!eq) {
-    container.replaceChildren(el("p", "This report has no equivalent-cylinder block."));
+    container.replaceChildren(el("p", "This result has no equivalent-cylinder check."));
     return;
   }
+  const vocab = vocabularyFor(report);
   const used = document.getElementById("eq-tolerance-used");
-  if (used) used.textContent = `in use: ${eq.tolerance}`;
+  if (used) used.replaceChildren("in use: ", valueWithUnit(vocab, `${EQ}.tolerance`, eq.tolerance));
   // The plot's width from the one drawn before, read before the tables are replaced (reading it
   // after would lay out the whole page again).
   const available = container.querySelector("#eq-plot .plot")?.clientWidth || 0;
-  const fig = plotFigure(report, eq);
-  const synapse = el("div", [el("h3", "At your synapse"), ...comparisonTable(eq), notGiven(eq)], "eq-cell");
-  const rules = el("div", [branchPointTable(eq)], "eq-cell eq-wide");
-  const joins = el("div", [cylinderJoinTable(eq)], "eq-cell");
-  const ends = el("div", terminalTable(eq), "eq-cell");
-  const cylinder = el("div", cylinderTable(eq), "eq-cell");
-  container.replaceChildren(el("div", [el("div", verdict(eq), "eq-cell"), synapse, rules, joins, ends,
+  const fig = plotFigure(vocab, report);
+  const synapse = el("div", [el("h3", "At your synapse"), ...comparisonTable(vocab, report), notGiven(vocab, report)], "eq-cell");
+  const rules = el("div", [branchPointTable(vocab, report)], "eq-cell eq-wide");
+  const joins = el("div", [cylinderJoinTable(vocab, report)], "eq-cell eq-wide");
+  const ends = el("div", terminalTable(vocab, report), "eq-cell");
+  const cylinder = el("div", cylinderTable(vocab, report), "eq-cell");
+  container.replaceChildren(el("div", [el("div", verdict(vocab, report), "eq-cell"), synapse, rules, joins, ends,
     el("div", fig, "eq-cell"), cylinder], "eq-grid"));
   const holder = fig.querySelector(".plot");
   try {
-    drawPlot(holder, report, eq, available);
+    drawPlot(holder, vocab, report, available);
+    stampFigure(fig, report);
   } catch (err) {
-    holder.textContent = `The plot could not be drawn: ${err.message}`;
+    console.error(err);
+    holder.replaceChildren(el("p", "The plot could not be drawn; reload the page to try again.", "hint"));
   }
 }

@@ -7,10 +7,6 @@ let texts = null;      // {table: {fmt: text}, rule_table: {...}, methods, stamp
 let asked = 0;
 const FORMAT_NAMES = { tsv: "TSV", md: "Markdown", latex: "LaTeX", csv: "CSV" };
 
-export function currentStamp() {
-  return texts?.stamp ?? "";
-}
-
 function setReady(root, ready) {
   for (const b of root.querySelectorAll("button[data-copy]")) b.disabled = !ready;
   root.dataset.texts = ready ? "ready" : "pending";
@@ -30,7 +26,6 @@ function showTexts(root, value) {
   }
   holder.replaceChildren(...parts);
   holder.dataset.text = value.methods;
-  root.querySelector("#paper-stamp").textContent = value.stamp;
   setReady(root, true);
 }
 
@@ -52,13 +47,16 @@ function fetchTexts(root, report, ctx, mine) {
   ctx.client.call("paper", ctx.json || report).then(({ value }) => {
     if (mine === asked) showTexts(root, value);
   }, (err) => {
-    if (mine === asked) root.querySelector("#paper-copied").textContent = `The paper texts could not be made: ${err.message}`;
+    console.error(err.message);
+    if (mine === asked) root.querySelector("#paper-copied").textContent = "The texts for the paper could not be made; change a value or reload the page.";
   });
 }
 
 export function renderPaper(root, report, ctx) {
   const mine = ++asked;
   setReady(root, false);
+  // The stamp of the report shown, at once: the texts that follow carry the same one.
+  root.querySelector("#paper-stamp").textContent = report.stamp?.text ?? "";
   cancelPending();
   if (!ctx?.client) return;
   const job = { timer: 0, idle: 0 };

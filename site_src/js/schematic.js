@@ -1,7 +1,14 @@
 // A small drawing of the branch table (a dendrogram): each branch a horizontal line whose
-// length is its length in µm, drawn from its parent's far end; line width follows each
+// length is the branch length to scale, drawn from its parent's far end; line width follows each
 // cylinder's diameter; the synapse is a marked dot. Drawing only — nothing here is physics.
+// While the table is edited it is drawn from the typed inputs (no stamp); each result redraws it
+// from the report's own scenario and stamps it with that report (for its download).
+import { COLOURS } from "./palette.js";
+import { definitionOf } from "./render.js";
+import { stampFigure } from "./figures.js";
+
 const NS = "http://www.w3.org/2000/svg";
+const LENGTH_KEY = "scenario.branches[].length";   // the scale bar's number is a length of a branch
 
 function svgEl(tag, attrs = {}, text) {
   const node = document.createElementNS(NS, tag);
@@ -17,7 +24,7 @@ function cylindersOf(b) {
   return list.map((s) => ({ length: num(s?.length), diameter: num(s?.diameter) }));
 }
 
-// x of each branch's start and end (path distance, µm), y slot of each branch.
+// x of each branch's start and end (path distance), y slot of each branch.
 function layout(branches) {
   const index = new Map();
   branches.forEach((b, i) => { if (!index.has(b.id)) index.set(b.id, i); });
@@ -75,37 +82,48 @@ export function drawSchematic(container, scenario) {
   const width = (d) => Math.max(1, Math.min(9, d * 1.6));
   const svg = svgEl("svg", { viewBox: `0 0 ${W} ${H}`, width: W, height: H, role: "img", class: "schematic-svg" });
   svg.append(svgEl("title", {}, "Schematic of the branch table: lengths to scale, line width follows diameter"));
-  const g = svgEl("g", { stroke: "#1d2330", "stroke-linecap": "butt", fill: "none" });
+  const g = svgEl("g", { stroke: COLOURS.ink, "stroke-linecap": "butt", fill: "none" });
   bs.forEach((b, i) => {
     const p = b.parent === null || b.parent === undefined ? undefined : lay.index.get(b.parent);
     const y = sy(lay.y[i]);
     const y0 = p === undefined ? sy((lay.slots - 1) / 2) : sy(lay.y[p]);
     if (p === undefined && b.parent !== null && b.parent !== undefined && b.parent !== "") {
-      g.append(svgEl("line", { x1: sx(0), y1: y0, x2: sx(0), y2: y, "stroke-dasharray": "3 3", "stroke-width": 1, stroke: "#a51d24" }));
+      g.append(svgEl("line", { x1: sx(0), y1: y0, x2: sx(0), y2: y, "stroke-dasharray": "3 3", "stroke-width": 1, stroke: COLOURS.error }));
     } else if (y0 !== y) {
-      g.append(svgEl("line", { x1: sx(lay.start[i]), y1: y0, x2: sx(lay.start[i]), y2: y, "stroke-width": 1, stroke: "#9aa3b0" }));
+      g.append(svgEl("line", { x1: sx(lay.start[i]), y1: y0, x2: sx(lay.start[i]), y2: y, "stroke-width": 1, stroke: COLOURS.rule }));
     }
     let x = lay.start[i];
     for (const s of cylindersOf(b)) {
       g.append(svgEl("line", { x1: sx(x), y1: y, x2: sx(x + s.length), y2: y, "stroke-width": width(s.diameter) }));
       x += s.length;
     }
-    svg.append(svgEl("text", { x: sx(ends[i]) + 4, y: y + 4, "font-size": 11, fill: "#5a6270" }, String(b.id ?? "")));
+    svg.append(svgEl("text", { x: sx(ends[i]) + 4, y: y + 4, "font-size": 11, fill: COLOURS.muted, "data-key": `scenario.branches[${i}].id` }, String(b.id ?? "")));
   });
   svg.append(g);
   const soma = scenario.soma;
   const r = soma && num(soma.diameter) ? Math.max(4, Math.min(12, num(soma.diameter) / 2)) : 0;
   const mid = sy((lay.slots - 1) / 2);
-  if (r) svg.append(svgEl("circle", { cx: sx(0) - r, cy: mid, r, fill: "#c9d3df", stroke: "#1d2330" }));
-  else svg.append(svgEl("text", { x: 2, y: mid + 4, "font-size": 10, fill: "#5a6270" }, "root"));
+  if (r) svg.append(svgEl("circle", { cx: sx(0) - r, cy: mid, r, fill: COLOURS.soma, "fill-opacity": 0.3, stroke: COLOURS.soma, class: "soma-mark" }));
+  else svg.append(svgEl("text", { x: 2, y: mid + 4, "font-size": 10, fill: COLOURS.muted }, "root"));
   const syn = synapsePoint(scenario, lay);
   if (syn) {
     const cx = sx(Math.min(syn.x, ends[syn.i])), cy = sy(lay.y[syn.i]);
-    svg.append(svgEl("circle", { cx, cy, r: 5, fill: "#c2571a", stroke: "#fff", "stroke-width": 1.5, class: "synapse-mark" }));
-    svg.append(svgEl("text", { x: cx - 4, y: cy - 8, "font-size": 10, fill: "#c2571a" }, "synapse"));
+    svg.append(svgEl("circle", { cx, cy, r: 5, fill: COLOURS.synapse, stroke: "#fff", "stroke-width": 1.5, class: "synapse-mark" }));
+    svg.append(svgEl("text", { x: cx - 4, y: cy - 8, "font-size": 10, fill: COLOURS.synapse }, "synapse"));
   }
   const bar = Math.pow(10, Math.floor(Math.log10(total / 3)));
-  svg.append(svgEl("line", { x1: sx(0), y1: H - 10, x2: sx(bar), y2: H - 10, stroke: "#1d2330", "stroke-width": 2 }));
-  svg.append(svgEl("text", { x: sx(bar) + 4, y: H - 6, "font-size": 10, fill: "#5a6270" }, `${bar} µm`));
+  svg.append(svgEl("line", { x1: sx(0), y1: H - 10, x2: sx(bar), y2: H - 10, stroke: COLOURS.ink, "stroke-width": 2 }));
+  const scale = svgEl("text", { x: sx(bar) + 4, y: H - 6, "font-size": 10, fill: COLOURS.muted, class: "scale-bar" });
+  const number = svgEl("tspan", { "data-key": LENGTH_KEY }, String(bar));
+  const unit = svgEl("tspan", { "data-unit-for": LENGTH_KEY }, definitionOf(null, LENGTH_KEY).unit);
+  scale.append(number, " ", unit);
+  svg.append(scale);
   container.replaceChildren(svg);
+  stampFigure(container.closest("figure"), null);
+}
+
+// The view of a result (main.js VIEWS): the drawing of the scenario the report solved, stamped.
+export function renderSchematic(figure, report) {
+  drawSchematic(figure.querySelector("#schematic"), report.scenario);
+  stampFigure(figure, report);
 }

@@ -1,33 +1,29 @@
-"""Shared pieces of the page tests: the page's fixed request extras, report comparison,
-the reading-rounding rule, and the page's own steps (wait for a result, type a value)."""
+"""Shared pieces of the page tests: the scenario the quick form stands for, report comparison,
+the engine's reading-rounding and labels, and the page's own steps (wait for a result, type a
+value)."""
 from __future__ import annotations
 
+import html
 import json
 import math
+import re
 
-# The frequencies the page asks for (site_src/js/quick-cable.js, FREQUENCIES_HZ).
-FREQUENCIES_HZ = [
-    0.1, 0.15, 0.2, 0.3, 0.5, 0.7,
-    1, 1.5, 2, 3, 5, 7,
-    10, 15, 20, 30, 50, 70,
-    100, 150, 200, 300, 500, 700,
-    1000,
-]
+from somaward import quantities
 
 BOOT_TIMEOUT_MS = 120_000
 
 
 def quick_scenario(distance, length, diameter, soma_diameter, end, Rm, Ri, Cm,
                    eq_tolerance=None) -> dict:
-    """The scenario the quick-cable form stands for (DEVELOPERS.md, 'The scenario');
+    """The scenario the quick-cable form stands for (DEVELOPERS.md, 'The scenario'): only what
+    the form holds, every other value the engine's default (the page sends no frequencies);
     ``eq_tolerance``: the equivalent-cylinder section's tolerance field, when it is filled."""
     scenario = {
         "membrane": {"Rm": Rm, "Ri": Ri, "Cm": Cm},
         "soma": None if soma_diameter is None else {"diameter": soma_diameter},
         "branches": [{"id": "dendrite", "parent": None, "length": length,
                       "diameter": diameter, "end": end}],
-        "synapse": {"branch": "dendrite", "distance": distance},
-        "frequencies_hz": FREQUENCIES_HZ,
+        "synapse": {"path": "dendrite", "path_distance": distance},
     }
     if eq_tolerance is not None:
         scenario["equivalent_cylinder"] = {"tolerance": eq_tolerance}
@@ -74,14 +70,45 @@ def rounded_ok(text: str, value: float, digits: int = 3) -> bool:
 
 
 def report_value(report: dict, key: str):
-    """The report value a displayed number stands for (data-key of a .num button)."""
-    if key in ("lambda_um", "electrotonic_length"):
-        v = report[key]["dendrite"]
-        return v[0] if isinstance(v, list) else v
-    value = report
-    for part in key.split("."):
-        value = value[part]
+    """The report value a displayed number stands for (the data-key of its element: dotted
+    names, [i] list indices; a per-branch entry such as lambda_um.<id> by its branch id)."""
+    for head in ("lambda_um", "electrotonic_length", "terminal_electrotonic_distance", "cylinders"):
+        if key.startswith(head + "."):
+            rest = key[len(head) + 1:]
+            for bid in sorted(report[head], key=len, reverse=True):
+                if rest == bid or rest.startswith(bid + "["):
+                    return lookup(report[head][bid], rest[len(bid):])
+    return lookup(report, key)
+
+
+def lookup(value, key: str):
+    """The value at a dotted path with [i] list indices."""
+    for name, index in re.findall(r"([^.\[\]]+)|\[(\d+)\]", key):
+        value = value[int(index)] if index else value[name]
     return value
+
+
+def defined_key(key: str) -> str:
+    """The report path whose quantity defines ``key``: itself, or for an item of a list of
+    values (d_child of one child) the list."""
+    while True:
+        try:
+            quantities.quantity(key)
+            return key
+        except KeyError:
+            if not re.search(r"\[\d+\]$", key):
+                raise
+            key = re.sub(r"\[\d+\]$", "", key)
+
+
+def shown(value, key: str) -> str:
+    """A report value as the engine writes it rounded for reading (quantities.format_value)."""
+    return quantities.format_value(value, defined_key(key))
+
+
+def html_text(markup: str) -> str:
+    """The text an HTML label shows (its <sub>/<sup> flattened)."""
+    return html.unescape(re.sub(r"<[^>]+>", "", markup))
 
 
 def wait_result(page, timeout=BOOT_TIMEOUT_MS):
