@@ -1,7 +1,7 @@
 // The branch table's rows as data: the table state (text as typed) ⇄ a scenario dict for
 // somaward.solve (DEVELOPERS.md, "The scenario"), and rows ⇄ tab-separated text for
 // spreadsheets. No physics here: numbers are only parsed, never computed with.
-import { FREQUENCIES_HZ, parseNumber } from "./quick-cable.js";
+import { numbers, parseNumber } from "./quick-cable.js";
 
 export const ENDS = ["sealed", "killed", "infinite", "load"];
 // Scenario keys the table does not edit but keeps, so that a file or link comes back whole.
@@ -25,9 +25,7 @@ export function isTerminal(branches, i) {
 
 function endFor(branch) {
   if (branch.end !== "load") return branch.end;
-  const load = { G: parseNumber(branch.G) };
-  if (branch.C.trim() !== "") load.C = parseNumber(branch.C);
-  return load;
+  return numbers({ G: branch.G, C: branch.C });
 }
 
 // The scenario the table stands for: branches in table order (so the engine's
@@ -40,10 +38,9 @@ export function scenarioFromState(state) {
   const branches = state.branches.map((b) => {
     const out = { id: b.id, parent: b.parent === "" ? null : b.parent };
     if (b.cylinders.length === 1) {
-      out.length = parseNumber(b.cylinders[0].length);
-      out.diameter = parseNumber(b.cylinders[0].diameter);
+      Object.assign(out, numbers({ length: b.cylinders[0].length, diameter: b.cylinders[0].diameter }));
     } else {
-      out.cylinders = b.cylinders.map((s) => ({ length: parseNumber(s.length), diameter: parseNumber(s.diameter) }));
+      out.cylinders = b.cylinders.map((s) => numbers({ length: s.length, diameter: s.diameter }));
     }
     if (terminal(b)) out.end = endFor(b);
     return out;
@@ -53,19 +50,20 @@ export function scenarioFromState(state) {
   if (soma && c.soma_Rm !== undefined) soma.Rm = c.soma_Rm;
   const syn = state.synapse;
   const synapse = syn.mode === "path"
-    ? { path: syn.path, path_distance: parseNumber(syn.path_distance) }
-    : { branch: syn.branch, distance: parseNumber(syn.distance) };
+    ? { path: syn.path, ...numbers({ path_distance: syn.path_distance }) }
+    : { branch: syn.branch, ...numbers({ distance: syn.distance }) };
   if (c.current !== undefined) synapse.current = c.current;
   const scenario = {};
   if (c.title !== undefined) scenario.title = c.title;
   if (c.notes !== undefined) scenario.notes = c.notes;
   Object.assign(scenario, {
-    membrane: { Rm: parseNumber(state.Rm), Ri: parseNumber(state.Ri), Cm: parseNumber(state.Cm) },
+    membrane: numbers({ Rm: state.Rm, Ri: state.Ri, Cm: state.Cm }),
     soma,
     branches,
     synapse,
-    frequencies_hz: c.frequencies_hz ?? FREQUENCIES_HZ,
   });
+  // Only what the loaded scenario held: otherwise the engine's own frequencies apply.
+  if (c.frequencies_hz !== undefined) scenario.frequencies_hz = c.frequencies_hz;
   for (const key of CARRIED.slice(2)) if (c[key] !== undefined) scenario[key] = c[key];
   return scenario;
 }

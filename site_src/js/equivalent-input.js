@@ -6,15 +6,13 @@
 // field's value added (without a tolerance when the field is empty); fillTolerance(scenario) puts
 // a loaded scenario's tolerance into the field. Typing in the field fires an
 // "input" event on the input form and Enter submits it, so the page's usual debounce and
-// "compute now" paths run; the engine's message about the field is shown beside it as well.
+// "compute now" paths run; the engine's message about the field is placed beside it by fields.js
+// (the field carries its scenario path, data-path).
 import { parseNumber } from "./quick-cable.js";
 
 const INPUT_ID = "eq-tolerance";
 const MESSAGE_ID = "eq-tolerance-msg";
 const FORM_ID = "quick-cable-form";        // the form whose input and submit events recompute
-// Where the input modules put a message that names no field of theirs (quick cable, branch table).
-const GENERAL_MESSAGE_IDS = ["form-message", "tree-message"];
-const PATH = "equivalent_cylinder.tolerance";
 
 // The field is the one place the tolerance lives on the page: a loaded scenario's value is put
 // into it (fillTolerance), and what it holds goes into every scenario solved, saved, linked or
@@ -61,13 +59,6 @@ function wire() {
       form.requestSubmit();
     }
   });
-  const general = GENERAL_MESSAGE_IDS.map((id) => document.getElementById(id)).filter(Boolean);
-  const mirror = () => {
-    const mine = general.map((m) => m.textContent).find((text) => text.startsWith(`${PATH}:`));
-    showOwnMessage(input, mine ?? "");
-  };
-  const watcher = new MutationObserver(mirror);
-  for (const m of general) watcher.observe(m, { childList: true, characterData: true, subtree: true });
 }
 
 wire();

@@ -2,25 +2,35 @@
 // input: autosave, the link in the URL fragment, scenario files, the demo. Links and files are
 // checked by the engine (somaward.validate) before they replace anything; a bad one is named
 // and the saved work stays as it was.
-import { readForm, scenarioFromValues, showMessage as quickMessage, clearMessages as quickClear } from "./quick-cable.js";
+import { readForm, scenarioFromValues } from "./quick-cable.js";
 import { TreeTable } from "./tree-table.js";
+import { plainWords } from "./fields.js";
 import { copyText } from "./clipboard.js";
 import * as keep from "./keep.js";
 
 const SAVE_DELAY_MS = 400;
 const $ = (sel) => document.querySelector(sel);
 
+// The quick form holds one stem branch without tapers, the synapse on it, and nothing else the
+// scenario may carry; anything more opens in the branch table. (Links and autosaves of the
+// quick form made before it left the frequencies to the engine hold the page's old grid in
+// frequencies_hz; it is dropped for the engine's own.)
+const QUICK_KEYS = new Set(["membrane", "soma", "branches", "synapse", "equivalent_cylinder", "frequencies_hz"]);
+
 function quickAdapter(form) {
   return {
     form,
     scenario: () => scenarioFromValues(readForm(form)),
-    showMessage: (m) => quickMessage(form, m),
-    clearMessages: () => quickClear(form),
-    fits: (s) => Array.isArray(s.branches) && s.branches.length === 1 && !s.branches[0].cylinders && s.synapse?.branch !== undefined,
+    fits: (s) => Array.isArray(s.branches) && s.branches.length === 1 && !s.branches[0].cylinders &&
+      (typeof s.branches[0].end === "string" || s.branches[0].end === undefined) &&
+      Object.keys(s).every((k) => QUICK_KEYS.has(k)) && !(s.soma && Object.keys(s.soma).some((k) => k !== "diameter")) &&
+      s.synapse && s.synapse.current === undefined &&
+      (s.synapse.path === s.branches[0].id || s.synapse.branch === s.branches[0].id),
     load(s) {
       const b = s.branches[0];
       const text = (v) => (v === null || v === undefined ? "" : String(v));
-      const values = { distance: s.synapse.distance, length: b.length, diameter: b.diameter,
+      // On a single stem the distance along the branch is the path distance.
+      const values = { distance: s.synapse.path_distance ?? s.synapse.distance, length: b.length, diameter: b.diameter,
         soma_diameter: s.soma ? s.soma.diameter : "", Rm: s.membrane?.Rm, Ri: s.membrane?.Ri, Cm: s.membrane?.Cm };
       for (const [k, v] of Object.entries(values)) form.querySelector(`#f-${k}`).value = text(v);
       const end = typeof b.end === "string" ? b.end : "sealed";
@@ -28,6 +38,13 @@ function quickAdapter(form) {
       radio.checked = true;
     },
   };
+}
+
+// An engine error about a scenario read from a link or a file: the plain words, and where in the
+// file (its JSON path, as `somaward report` names it).
+function fileError(err) {
+  if (err.type !== "ScenarioError") return err.message;
+  return err.path ? `${plainWords(err)} (at ${err.path} in the file)` : plainWords(err);
 }
 
 export class Inputs {
@@ -81,7 +98,9 @@ export class Inputs {
     this.setMode(mode);
   }
 
-  // At start: the saved work (or the demo), then a link in the URL if there is one.
+  // At start: the saved work (or the demo), then a link in the URL if there is one. The saved
+  // work is shown at once; once the engine is up, it rewrites keys of older versions
+  // (somaward's rename_old_keys), and the work is shown again if anything was renamed.
   async restore() {
     this.setMode("quick");
     const saved = keep.loadSaved();
@@ -92,12 +111,35 @@ export class Inputs {
       } catch {
         this.setMode("quick");
       }
+      try {
+        const up = await this.upgrade(saved.scenario);
+        if (up.warnings.length) {
+          this.apply({ mode: saved.mode, scenario: up.scenario });
+          this.status("Your saved inputs are back (kept in this browser). ", up.warnings);
+        }
+      } catch {
+        // not a scenario the engine can read: the inputs stay as shown, and the result says why
+      }
     }
     if (location.hash.length > 1) await this.openLink(location.hash, false);
   }
 
-  status(text) {
-    $("#keep-status").textContent = text;
+  // The scenario with the keys of older versions renamed by the engine: {scenario, warnings}.
+  async upgrade(scenario) {
+    const { value } = await this.client.call("upgrade", scenario);
+    return value;
+  }
+
+  // A status line; `notes` are the engine's own sentences (renamed keys), shown after it.
+  status(text, notes = []) {
+    const holder = $("#keep-status");
+    holder.replaceChildren(text);
+    notes.forEach((note, i) => {
+      const span = document.createElement("span");
+      span.dataset.key = `upgrade.warnings[${i}]`;
+      span.textContent = plainWords({ plain: note });
+      holder.append(" ", span);
+    });
   }
 
   error(text) {
@@ -110,29 +152,30 @@ export class Inputs {
   }
 
   async openLink(hash, recompute) {
-    let snap;
+    let snap, up;
     try {
       snap = await keep.decodeFragment(hash);
       if (this.lastFragment === hash.replace(/^#/, "")) return;
-      await this.validated(snap.scenario);
-      this.apply(snap);
+      up = await this.upgrade(snap.scenario);
+      await this.validated(up.scenario);
+      this.apply({ mode: snap.mode, scenario: up.scenario });
     } catch (err) {
-      this.error(`This link could not be opened: ${err.message}. ` +
+      this.error(`This link could not be opened: ${fileError(err).replace(/ in the file\)$/, " in the link)")}. ` +
         "The inputs shown are your saved work (or the demo), unchanged; nothing was overwritten.");
       document.body.dataset.link = "bad";
       return;
     }
     document.body.dataset.link = "opened";
     this.error("");
-    this.replaceSaved("Opened the inputs from the link.");
+    this.replaceSaved("Opened the inputs from the link.", up.warnings);
     if (recompute) this.compute();
   }
 
   // The inputs were replaced wholesale: save them, keeping the previous save one click away.
-  replaceSaved(words) {
+  replaceSaved(words, notes = []) {
     const had = keep.keepPrevious();
     $("#back-to-previous").hidden = !had;
-    this.status(words + (had ? " Your previous work is kept: “Back to my previous work” returns to it." : ""));
+    this.status(words + (had ? " Your previous work is kept: “Back to my previous work” returns to it." : ""), notes);
     this.saveNow();
   }
 
@@ -157,21 +200,23 @@ export class Inputs {
   }
 
   async openFile(file) {
-    let scenario;
+    let up;
     try {
-      scenario = keep.parseFile(file.name, await file.text());
-      await this.validated(scenario);
-      this.tree.load(scenario);
-      this.fill(scenario);
+      const scenario = keep.parseFile(file.name, await file.text());
+      up = await this.upgrade(scenario);
+      await this.validated(up.scenario);
+      this.tree.load(up.scenario);
+      this.fill(up.scenario);
       this.setMode("tree");
     } catch (err) {
-      this.error(`Not opened: ${err.message}. Your inputs and your saved work are unchanged.`);
+      this.error(`Not opened: ${err.type === "ScenarioError" ? `${file.name}: ` : ""}${fileError(err)}. ` +
+        "Your inputs and your saved work are unchanged.");
       document.body.dataset.imported = "bad";
       return;
     }
     this.error("");
     document.body.dataset.imported = "ok";
-    this.replaceSaved(`Opened ${file.name}.`);
+    this.replaceSaved(`Opened ${file.name}.`, up.warnings);
     this.compute();
   }
 

@@ -104,7 +104,7 @@ export function downloadJSON(scenario, name) {
 export function parseFile(name, text) {
   try {
     return JSON.parse(text);
-  } catch (err) {
-    throw new Error(`${name} is not valid JSON (${err.message})`);
+  } catch {
+    throw new Error(`${name} is not valid JSON (is it cut short, or not a scenario file?)`);
   }
 }

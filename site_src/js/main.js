@@ -1,12 +1,13 @@
 // Somaward's page: boots the worker, keeps the form and the results in step.
 // body[data-state] = loading | ready | error; body[data-results] = none | fresh | stale;
 // body[data-input] = pending | valid | invalid (the newest request's fate).
-// Timings (performance.now(), ms) are left on body for bench/page.py:
+// Timings (performance.now(), in milliseconds) are left on body for bench/page.py:
 // data-t-first-result, data-t-input, data-t-sent, data-t-shown (the views on screen drawn),
 // data-t-drawn (every view drawn; see VIEWS).
 import { EngineClient } from "./worker-client.js";
 import { Inputs } from "./inputs.js";  // quick cable or branch table; autosave, links, files
 import { fillTolerance, withTolerance } from "./equivalent-input.js";  // equivalent_cylinder.tolerance (section "equivalent")
+import { clearMessages, showError } from "./fields.js";  // engine messages beside their fields
 
 const DEBOUNCE_MS = 250;
 const body = document.body;
@@ -34,6 +35,7 @@ const VIEWS = [
   { module: "./charts.js", render: "renderPlots", target: "#plots", lazy: true },
   { module: "./equivalent.js", render: "renderEquivalent", target: "#equivalent-body", lazy: true },
   { module: "./tree-map.js", render: "renderTreeMap", target: "#tree-map", lazy: true },
+  { module: "./schematic.js", render: "renderSchematic", target: "#schematic-figure", lazy: true },
   { module: "./paper.js", render: "renderPaper", target: "#paper", init: "initPaper" },
   { module: "./figures.js", render: "addFigureButtons", target: "#sections", after: true },
 ];
@@ -92,7 +94,8 @@ function draw(view, report) {
   try {
     view.fn(el, report, { client, json: lastJSON });
   } catch (err) {
-    el.textContent = `This part could not be drawn: ${err.message}`;
+    console.error(err);
+    el.textContent = "This part could not be drawn; reload the page to try again.";
   }
   performance.measure(`view ${view.module}`, { start: t0 });
 }
@@ -105,7 +108,8 @@ function loadViews() {
       if (view.lazy && observer) observer.observe(document.querySelector(view.target));
       if (lastReport) draw(view, lastReport);
     }, (err) => {
-      document.querySelector(view.target).textContent = `Not available: ${err.message}`;
+      console.error(err);
+      document.querySelector(view.target).textContent = "This part could not be loaded; reload the page to try again.";
     });
   }
 }
@@ -155,7 +159,7 @@ function askBackground() {
 
 async function recompute() {
   const mine = ++latest;
-  const input = inputs.current();
+  const mode = inputs.mode;
   const scenario = inputs.scenario();
   body.dataset.tSent = performance.now().toFixed(2);
   body.dataset.input = "pending";
@@ -164,7 +168,7 @@ async function recompute() {
     const { value, json } = await client.call("solve", scenario);
     performance.measure("solve round trip", { start: t0 });
     if (mine !== latest) return;
-    input.clearMessages();
+    clearMessages();
     body.dataset.input = "valid";
     show(value, json);
     askBackground();
@@ -173,7 +177,8 @@ async function recompute() {
     if (err.type === "BootError") return;  // the boot error notice says it all
     body.dataset.input = "invalid";
     markStale();
-    input.showMessage(err.message);
+    if (err.type !== "ScenarioError") console.error(err.message);
+    showError(mode, err);
     askBackground();
   }
 }
@@ -204,14 +209,16 @@ const handlers = {
   ready: (msg) => {
     body.dataset.state = "ready";
     body.dataset.tReady = performance.now().toFixed(2);
-    readyText = `Ready (engine ${msg.versions.engine ?? "?"}, numpy ${msg.versions.numpy}).`;
+    readyText = "Ready.";
     setStatus(readyText);
   },
   bootError: (message) => fail(message),
   scipy: (msg) => {
     body.dataset.scipy = msg.ok ? "ready" : "error";
-    if (!msg.ok) setStatus(`${readyText} scipy could not load (${msg.message}); results that need it will fail.`);
-    else setStatus(`${readyText} scipy loaded.`);
+    if (!msg.ok) {
+      console.error(msg.message);
+      setStatus(`${readyText} Part of the calculator did not load; if a result is missing, reload the page.`);
+    } else setStatus(readyText);
   },
 };
 

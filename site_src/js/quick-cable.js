@@ -1,14 +1,7 @@
-// The quick-cable form: its values → a scenario dict for somaward.solve (see
-// DEVELOPERS.md), and the engine's error messages → the field they are about.
-
-// Frequencies the page asks for (Hz): 0.1 … 1000, six a decade, exact decimal literals.
-export const FREQUENCIES_HZ = [
-  0.1, 0.15, 0.2, 0.3, 0.5, 0.7,
-  1, 1.5, 2, 3, 5, 7,
-  10, 15, 20, 30, 50, 70,
-  100, 150, 200, 300, 500, 700,
-  1000,
-];
+// The quick-cable form: its values → a scenario dict for somaward.solve (see DEVELOPERS.md).
+// It sends only what the person typed: every default (frequencies, map spacing, the soma's Rm…)
+// is the engine's, so the page computes what `somaward report` computes for the saved file.
+// Engine messages are placed by fields.js (each field carries its scenario path, data-path).
 
 export const FIELDS = ["distance", "length", "diameter", "soma_diameter", "Rm", "Ri", "Cm"];
 export const BRANCH_ID = "dendrite";
@@ -25,6 +18,17 @@ export function parseNumber(text) {
   return Number.isFinite(n) ? n : t;
 }
 
+// The numbers typed, by key; an empty field is left out, so that the engine's default applies
+// (Cm) or the engine names the field that is needed (Ri: enter a number).
+export function numbers(fields) {
+  const out = {};
+  for (const [key, text] of Object.entries(fields)) {
+    const value = parseNumber(text ?? "");
+    if (value !== null) out[key] = value;
+  }
+  return out;
+}
+
 export function readForm(form) {
   const values = {};
   // (not form.elements[name]: "length" is a property of the collection itself)
@@ -33,55 +37,19 @@ export function readForm(form) {
   return values;
 }
 
+// The synapse sits on the one dendrite at a path distance from the soma (or root), the quick
+// form's own words (the schema's label of synapse.path_distance).
 export function scenarioFromValues(values) {
   const somaText = values.soma_diameter.trim();
   return {
-    membrane: {
-      Rm: parseNumber(values.Rm),
-      Ri: parseNumber(values.Ri),
-      Cm: parseNumber(values.Cm),
-    },
+    membrane: numbers({ Rm: values.Rm, Ri: values.Ri, Cm: values.Cm }),
     soma: somaText === "" ? null : { diameter: parseNumber(somaText) },
     branches: [{
       id: BRANCH_ID,
       parent: null,
-      length: parseNumber(values.length),
-      diameter: parseNumber(values.diameter),
+      ...numbers({ length: values.length, diameter: values.diameter }),
       end: values.end,
     }],
-    synapse: { branch: BRANCH_ID, distance: parseNumber(values.distance) },
-    frequencies_hz: FREQUENCIES_HZ,
+    synapse: { path: BRANCH_ID, ...numbers({ path_distance: values.distance }) },
   };
-}
-
-// JSON path at the start of an engine message → the form field it names.
-const PATHS = [
-  [/^synapse(\.(distance|path_distance))?$/, "distance"],
-  [/^branches\[[^\]]+\]\.length$/, "length"],
-  [/^branches\[[^\]]+\]\.diameter$/, "diameter"],
-  [/^branches\[[^\]]+\]\.end$/, "end"],
-  [/^soma(\.diameter)?$/, "soma_diameter"],
-  [/^membrane\.Rm$/, "Rm"],
-  [/^membrane\.Ri$/, "Ri"],
-  [/^membrane\.Cm$/, "Cm"],
-];
-
-export function fieldForMessage(message) {
-  const path = message.split(":")[0].trim();
-  for (const [pattern, field] of PATHS) if (pattern.test(path)) return field;
-  return null;
-}
-
-export function clearMessages(form) {
-  for (const el of form.querySelectorAll(".field-msg")) el.textContent = "";
-  for (const el of form.querySelectorAll("[aria-invalid]")) el.removeAttribute("aria-invalid");
-}
-
-export function showMessage(form, message) {
-  clearMessages(form);
-  const field = fieldForMessage(message);
-  const target = form.querySelector(field ? `#f-${field}-msg` : "#form-message");
-  target.textContent = message;
-  if (field && field !== "end") form.querySelector(`#f-${field}`).setAttribute("aria-invalid", "true");
-  return field;
 }

@@ -3,9 +3,17 @@
 // a scenario. Every user text goes into the page through value / textContent only.
 import { emptyBranch, ENDS, isTerminal, rowsFromTSV, rowsToTSV, scenarioFromState, stateFromScenario } from "./branch-rows.js";
 import { drawSchematic } from "./schematic.js";
+import { endConditions, inputFields } from "./vocabulary.js";
+import { plainText } from "./render.js";
 
 const EAGER_PARENT_LISTS = 60;  // branches; above this a parent list is filled when reached
-const END_LABELS = { sealed: "sealed", killed: "killed", infinite: "goes on for ever", load: "lumped load G, C" };
+
+// A field's name as the schema labels it, with its unit in brackets.
+function fieldName(path) {
+  const f = inputFields()[path];
+  const name = plainText(f.label_html);
+  return f.unit ? `${name} (${f.unit})` : name;
+}
 
 function el(tag, props = {}, ...children) {
   const node = document.createElement(tag);
@@ -86,15 +94,26 @@ export class TreeTable {
     this.showCarried();
   }
 
+  // What a loaded scenario holds that the table does not edit: each value keyed by its path.
   showCarried() {
     const c = this.state.carried || {};
     const parts = [];
-    if (c.title) parts.push(`“${c.title}”`);
-    if (c.current) parts.push(`synaptic current: ${c.current.shape ?? "given"}`);
-    if (c.soma_Rm !== undefined) parts.push(`soma Rm ${c.soma_Rm} Ω·cm²`);
-    for (const k of ["map_spacing_um", "map_frequency_hz"]) if (c[k] !== undefined) parts.push(`${k} = ${c[k]}`);
-    if (c.frequencies_hz) parts.push(`${c.frequencies_hz.length} frequencies`);
-    this.carriedNote.textContent = parts.length ? `Also kept from the loaded scenario (not edited here): ${parts.join("; ")}.` : "";
+    const value = (path, v, words) => {
+      const span = el("span", { dataset: { key: `scenario.${path}` }, textContent: words ?? String(v) });
+      const f = inputFields()[path];
+      return [`${plainText(f.label_html)}: `, span, f.unit && words === undefined ? ` ${f.unit}` : ""];
+    };
+    if (c.title) parts.push(value("title", c.title));
+    if (c.current) parts.push(value("synapse.current", null, c.current.shape ?? "given"));
+    if (c.soma_Rm !== undefined) parts.push(value("soma.Rm", c.soma_Rm));
+    for (const k of ["map_spacing_um", "map_frequency_hz"]) if (c[k] !== undefined) parts.push(value(k, c[k]));
+    if (c.frequencies_hz) parts.push(value("frequencies_hz", null, c.frequencies_hz.join(", ")));
+    const note = this.carriedNote;
+    note.replaceChildren();
+    if (!parts.length) return;
+    note.append("Also kept from the loaded scenario (not edited here): ");
+    parts.forEach((p, n) => note.append(...(n ? ["; "] : []), ...p));
+    note.append(".");
   }
 
   branchBody(b, i) {
@@ -116,21 +135,26 @@ export class TreeTable {
     const first = k === 0;
     const name = first ? "" : ` cylinder ${k + 1}`;
     if (first) {
-      tr.append(el("td", {}, this.input(i, 0, "id", b.id, `branch ${i + 1} id`)));
-      const sel = el("select", { className: "cell cell-parent", dataset: { b: String(i), s: "0", f: "parent" }, ariaLabel: `branch ${i + 1} parent` });
+      tr.append(el("td", {}, this.input(i, 0, "id", b.id, `branch ${i + 1}: ${fieldName("branches[].id")}`)));
+      const sel = el("select", { className: "cell cell-parent", dataset: { b: String(i), s: "0", f: "parent" }, ariaLabel: `branch ${i + 1}: ${fieldName("branches[].parent")}` });
       tr.append(el("td", {}, sel));
     } else {
-      tr.append(el("td", { colSpan: 2, className: "cylinder-label", textContent: `↳ cylinder ${k + 1} of this branch` }));
+      tr.append(el("td", { colSpan: 2, className: "cylinder-label", textContent: `↳ cylinder ${k + 1} of this branch`,
+        dataset: { key: `scenario.branches[${i}].cylinders[${k}]` } }));
     }
-    tr.append(el("td", {}, this.input(i, k, "length", sec.length, `branch ${i + 1}${name} length (µm)`)));
-    tr.append(el("td", {}, this.input(i, k, "diameter", sec.diameter, `branch ${i + 1}${name} diameter (µm)`)));
+    tr.append(el("td", {}, this.input(i, k, "length", sec.length, `branch ${i + 1}${name}: ${fieldName("branches[].length")}`)));
+    tr.append(el("td", {}, this.input(i, k, "diameter", sec.diameter, `branch ${i + 1}${name}: ${fieldName("branches[].diameter")}`)));
     if (first) {
-      const end = el("select", { className: "cell cell-end", dataset: { b: String(i), s: "0", f: "end" }, ariaLabel: `branch ${i + 1} far end` },
-        ...ENDS.map((e) => option(e, END_LABELS[e], e === b.end)));
-      const G = this.input(i, 0, "G", b.G, `branch ${i + 1} load conductance G (nS)`);
-      const C = this.input(i, 0, "C", b.C, `branch ${i + 1} load capacitance C (pF)`);
-      G.placeholder = "G nS";
-      C.placeholder = "C pF";
+      const end = el("select", { className: "cell cell-end", dataset: { b: String(i), s: "0", f: "end" }, ariaLabel: `branch ${i + 1}: ${fieldName("branches[].end")}` },
+        ...ENDS.map((e) => {
+          const o = option(e, e, e === b.end);
+          o.title = endConditions()[e] ?? "";
+          return o;
+        }));
+      const G = this.input(i, 0, "G", b.G, `branch ${i + 1}: ${fieldName("branches[].end.G")}`);
+      const C = this.input(i, 0, "C", b.C, `branch ${i + 1}: ${fieldName("branches[].end.C")}`);
+      G.placeholder = fieldName("branches[].end.G").replace(/^.* (\S+ \()/, "$1");
+      C.placeholder = fieldName("branches[].end.C").replace(/^.* (\S+ \()/, "$1");
       tr.append(el("td", { className: "end-cell" }, end, el("span", { className: "load" }, G, C), el("span", { className: "not-terminal", textContent: "branch point" })));
     } else {
       tr.append(el("td"));
@@ -341,41 +365,5 @@ export class TreeTable {
     this.applyRows(text, true);
   }
 
-  // --- engine messages beside the cell they are about ---
-  clearMessages() {
-    this.message.textContent = "";
-    for (const m of this.form.querySelectorAll(".field-msg")) m.textContent = "";
-    for (const x of this.form.querySelectorAll("[aria-invalid]")) x.removeAttribute("aria-invalid");
-  }
-
-  showMessage(message) {
-    this.clearMessages();
-    const path = message.split(":")[0].trim();
-    const f = this.form;
-    let target = null;
-    let cell = null;
-    const m = /^branches\[(\d+)\](?:\.cylinders\[(\d+)\])?(?:\.(\w+))?/.exec(path);
-    if (m && f.querySelector(`tbody[data-b="${m[1]}"]`)) {
-      const [i, k, field] = [m[1], m[2] ?? "0", m[3]];
-      target = f.querySelector(`#t-b${i}-msg`);
-      const name = field === "end" && /\.end\.(G|C)/.test(path) ? path.split(".").pop() : field;
-      cell = f.querySelector(`tbody[data-b="${i}"] [data-s="${k}"][data-f="${name ?? "id"}"]`) ||
-        f.querySelector(`tbody[data-b="${i}"] [data-f="id"]`);
-    } else {
-      const side = [
-        [/^synapse\.(distance|branch)$/, "t-syn-distance", "t-syn-branch"],
-        [/^synapse\.(path_distance|path)$/, "t-syn-path_distance", "t-syn-path"],
-        [/^synapse/, "t-syn-distance", null],
-        [/^soma/, "t-soma_diameter", "t-soma_diameter"],
-        [/^membrane\.Rm$/, "t-Rm", "t-Rm"], [/^membrane\.Ri$/, "t-Ri", "t-Ri"], [/^membrane\.Cm$/, "t-Cm", "t-Cm"],
-      ].find(([re]) => re.test(path));
-      if (side) {
-        target = f.querySelector(`#${side[1]}-msg`);
-        const which = /\.(branch|path)$/.test(path) ? side[2] : side[1];
-        cell = which ? f.querySelector(`#${which}`) : null;
-      }
-    }
-    (target || this.message).textContent = message;
-    if (cell) cell.setAttribute("aria-invalid", "true");
-  }
+  // Engine messages are placed beside their cell by fields.js (one registry for every section).
 }

@@ -1,10 +1,15 @@
 // The page's side of the worker protocol: {id, fn, args} → {id, ok, value | error},
 // with args and value as JSON strings. Other worker messages go to the handlers.
 
+// An error answered by the engine: type (ScenarioError for bad input), message (the JSON-path
+// form, as the CLI prints it), path (the field's JSON path) and plain (the message for a form,
+// naming the field by its label).
 export class EngineError extends Error {
-  constructor(type, message) {
+  constructor(type, message, path = null, plain = null) {
     super(message);
     this.type = type;
+    this.path = path;
+    this.plain = plain;
   }
 }
 
@@ -28,7 +33,7 @@ export class EngineClient {
       if (!waiter) return;
       this.pending.delete(msg.id);
       if (msg.ok) waiter.resolve({ json: msg.value, value: JSON.parse(msg.value) });
-      else waiter.reject(new EngineError(msg.error.type, msg.error.message));
+      else waiter.reject(new EngineError(msg.error.type, msg.error.message, msg.error.path ?? null, msg.error.plain ?? null));
       return;
     }
     const handler = { progress: "progress", ready: "ready", "boot-error": "bootError", scipy: "scipy" }[msg.type];

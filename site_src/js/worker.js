@@ -77,7 +77,7 @@ async function boot(config) {
   const base = self.location.href;
   const indexURL = new URL(config.indexURL, base).href;
   const lockURL = new URL(config.lockURL, base).href;
-  progress("python", "loading Python…");
+  progress("python", "Starting the calculator…");
   const modPromise = import(indexURL + "pyodide.mjs");
   modPromise.catch(() => {});
   const lock = await fetchLock(lockURL);
@@ -104,9 +104,9 @@ async function boot(config) {
     const tail = stderr.slice(-2).join(" ");
     throw new Error(`Python did not start (pyodide.asm.wasm, python_stdlib.zip): ${err.message} ${tail}`.trim());
   }
-  progress("numpy", "loading numpy…");
+  progress("numpy", "Loading the numerical library…");
   await loadChecked(pyodide, ["numpy"]);
-  progress("engine", "loading the engine…");
+  progress("engine", "Loading the cable engine…");
   await loadChecked(pyodide, ["somaward", "somaward-page"]);
   const bridge = pyodide.pyimport("somaward_page");
   const versions = JSON.parse(bridge.versions());
@@ -120,7 +120,7 @@ async function loadScipy() {
   scipyStarted = true;
   try {
     const { pyodide } = await ready;
-    progress("scipy", "loading scipy in the background…");
+    progress("scipy", "Loading the rest in the background…");
     await loadChecked(pyodide, ["scipy"]);
     post({ type: "scipy", ok: true, message: "scipy loaded" });
   } catch (err) {

@@ -8,6 +8,7 @@ import json
 
 import pytest
 
+import somaward
 from helpers import shown_report, wait_result, BOOT_TIMEOUT_MS
 
 pytestmark = pytest.mark.browser
@@ -136,7 +137,11 @@ def test_bad_link_and_corrupt_file_leave_saved_work(page, served, tmp_path, arti
     page.evaluate("document.body.dataset.imported = ''")
     page.set_input_files("#import-json", str(wrong))
     page.wait_for_selector("body[data-imported=bad]", state="attached")
-    assert "branches[3].diameter: must be > 0 µm, got -1" in page.text_content("#keep-error")
+    said = page.text_content("#keep-error")
+    with pytest.raises(somaward.ScenarioError) as err:
+        somaward.validate(s)
+    # The engine's plain words, and where in the file (its JSON path, as the CLI names it).
+    assert err.value.plain in said and "branches[3].diameter" in said, said
     assert saved(page) == before and page.get_attribute("body", "data-mode") == "quick"
     page.screenshot(path=artifacts / "keep-bad-file.png")
 

@@ -16,7 +16,7 @@ from pathlib import Path
 import pytest
 
 import somaward
-from helpers import FREQUENCIES_HZ, differences, shown_report, wait_result, BOOT_TIMEOUT_MS
+from helpers import differences, shown_report, wait_result, BOOT_TIMEOUT_MS
 
 pytestmark = pytest.mark.browser
 
@@ -42,7 +42,6 @@ def three_branch_scenario() -> dict:
             {"id": "d2", "parent": "trunk", "length": 250, "diameter": 0.9, "end": {"G": 2, "C": 5}},
         ],
         "synapse": {"branch": "d2", "distance": 180},
-        "frequencies_hz": FREQUENCIES_HZ,
     })
 
 
@@ -71,11 +70,11 @@ def type_three_branches(page):
     while page.locator("#branch-table tbody").count() > 1:
         action(page, 1, "remove")
     while page.locator('#branch-table tbody[data-b="0"] tr.cylinder-row').count() > 0:
-        action(page, 0, "remove-section", s=1)
+        action(page, 0, "remove-cylinder", s=1)
     cell(page, 0, "id").fill("trunk")
     cell(page, 0, "length").fill("200")
     cell(page, 0, "diameter").fill("3")
-    action(page, 0, "add-section")
+    action(page, 0, "add-cylinder")
     cell(page, 0, "length", 1).fill("100")
     cell(page, 0, "diameter", 1).fill("2")
     action(page, 0, "add-child")
@@ -179,7 +178,12 @@ def test_engine_error_beside_its_cell_and_last_result_kept(page, served, artifac
     page.press("#t-Rm", "Enter")
     page.wait_for_selector("body[data-input=invalid]", state="attached", timeout=BOOT_TIMEOUT_MS)
     msg = page.text_content("#t-b2-msg")
-    assert msg.startswith("branches[2].diameter: must be > 0"), msg
+    bad = json.loads(json.dumps(DEMO))
+    bad["branches"][2]["diameter"] = -1
+    with pytest.raises(somaward.ScenarioError) as err:
+        somaward.validate(bad)
+    # The row as the table shows it (counted from 1, with its id), then the engine's plain words.
+    assert msg == f"Branch 3 ({before['scenario']['branches'][2]['id']}) — {err.value.plain}", msg
     assert cell(page, 2, "diameter").get_attribute("aria-invalid") == "true"
     assert page.get_attribute("body", "data-results") == "stale"
     assert page.is_visible("#tree-map .stale-badge")
@@ -209,7 +213,9 @@ def test_hostile_branch_id_stays_text(page, served, artifacts):
     cell(page, 2, "id").fill(HOSTILE)
     page.press("#t-Rm", "Enter")
     page.wait_for_selector("body[data-input=invalid]", state="attached")
-    assert page.text_content("#t-b2-msg") == f"branches[2].id: duplicate id '{HOSTILE}' (also branches[1])"
+    msg = page.text_content("#t-b2-msg")
+    assert msg.startswith(f"Branch 3 ({HOSTILE}) — ") and f"'{HOSTILE}'" in msg, msg
+    assert "branches[" not in msg
     assert page.locator("img").count() == 0
     page.screenshot(path=artifacts / "tree-hostile-id.png", full_page=False)
     assert page.dialogs == [] and page.log.errors == []
