@@ -211,7 +211,8 @@ def _check_map_points(branches, spacing_um):
     points = 0.0
     for b in branches:
         for s in b.get("cylinders", [b]):
-            points += math.ceil(s["length"] / spacing_um) + 1
+            pieces = s["length"] / spacing_um             # inf for a subnormal spacing: no ceil of it
+            points += (math.ceil(pieces) + 1) if pieces <= MAX_MAP_POINTS else pieces
             if points > MAX_MAP_POINTS:
                 raise ScenarioError("map_spacing_um", f"too fine for this tree: more than {MAX_MAP_POINTS:,} map "
                                     f"points; use a larger spacing, got {describe(spacing_um)} µm")

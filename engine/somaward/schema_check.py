@@ -7,6 +7,8 @@ where no compiled validator is available). Supported keywords: type, properties,
 additionalProperties: false, items, minItems, maxItems, minLength, maxLength, enum, const,
 minimum, maximum, exclusiveMinimum, oneOf, $ref (local), default, and the annotations x-unit
 and x-message. ``tests/test_schema.py`` checks that it agrees with the ``jsonschema`` package.
+Numbers are compared with their bounds as Python numbers, so an integer of 10 000 digits is out
+of range rather than an OverflowError.
 """
 
 import copy
@@ -105,12 +107,31 @@ def field_of_path(path):
 
 
 def describe(value, limit=40):
-    """A short quotation of a user's value for an error message ('text', 12.5, null, …)."""
+    """A short quotation of a user's value for an error message ('text', 12.5, null, …); integers
+    too long for a float are described by their number of digits (Python refuses to write an
+    integer of more than 4,300 digits as text)."""
     if isinstance(value, str):
         text = repr(value)
+    elif isinstance(value, int) and not isinstance(value, bool) and abs(value) > _FLOAT_MAX:
+        text = f"{'a negative' if value < 0 else 'an'} integer of {_digits(value)} digits"
     else:
         text = json.dumps(value, ensure_ascii=False) if _jsonable(value) else repr(value)
     return text if len(text) <= limit else text[: limit - 1] + "…"
+
+
+_FLOAT_MAX = 1.7976931348623157e308
+
+
+def _digits(n):
+    """Number of decimal digits of a big integer, without converting it to text (which Python
+    refuses above 4,300 digits)."""
+    n = abs(n)
+    d = max(1, int((n.bit_length() - 1) * 0.30102999566398120) + 1)
+    while n >= 10 ** d:
+        d += 1
+    while d > 1 and n < 10 ** (d - 1):
+        d -= 1
+    return d
 
 
 def _jsonable(value):
@@ -145,6 +166,28 @@ def _is_type(value, name):
     if name == "boolean":
         return isinstance(value, bool)
     raise KeyError(name)
+
+
+def _fmt(x):
+    """A schema bound for reading: 1000000 as 1000000, 1e9 as 1e9, 0.001 as 0.001."""
+    if float(x).is_integer() and abs(x) < 1e7:
+        return str(int(x))
+    text = f"{float(x):g}"
+    if "e" in text:
+        mant, exp = text.split("e")
+        text = f"{mant}e{int(exp)}"
+    return text
+
+
+def _allowed(node, u):
+    """The plausible range of a number in words ('from 0.001 to 1000 µm'), or None if unbounded."""
+    if "maximum" not in node:
+        return None
+    if "minimum" in node:
+        return f"from {_fmt(node['minimum'])} to {_fmt(node['maximum'])}{u}"
+    if "exclusiveMinimum" in node:
+        return f"greater than {_fmt(node['exclusiveMinimum'])} and up to {_fmt(node['maximum'])}{u}"
+    return None
 
 
 def _plain_missing(node):
@@ -224,19 +267,37 @@ class _Checker:
             raise ScenarioError(path, f"must be {words}{unit_words}, got {describe(value)}", plain)
 
     def check_number(self, value, node, path, unit):
+        """Finite, then the sign rule (> 0 or ≥ 0), then the plausible range.
+
+        A broken sign rule keeps its short wording (``must be > 0 µm, got -1``); a value outside
+        the plausible range names it (``must be ≤ 1000 µm (allowed: from 0.001 to 1000 µm),
+        got 1e+250``). Integers too large for a float are out of range, never an OverflowError:
+        Python compares an int with a float bound exactly.
+        """
         u = f" {unit}" if unit else ""
-        if not math.isfinite(value):
+        got = f"got {describe(value)}"
+        if isinstance(value, float) and not math.isfinite(value):
             raise ScenarioError(path, f"must be a finite number{f' ({unit})' if unit else ''}, got {value}",
                                 f"enter a finite number{_in(unit)}")
+        lo, hi, allowed = node.get("minimum"), node.get("maximum"), _allowed(node, u)
         if "exclusiveMinimum" in node and not value > node["exclusiveMinimum"]:
-            raise ScenarioError(path, f"must be > {node['exclusiveMinimum']}{u}, got {describe(value)}",
-                                f"enter a number greater than {node['exclusiveMinimum']:g}{u}")
-        if "minimum" in node and not value >= node["minimum"]:
-            raise ScenarioError(path, f"must be ≥ {node['minimum']}{u}, got {describe(value)}",
-                                f"enter a number of at least {node['minimum']:g}{u}")
-        if "maximum" in node and not value <= node["maximum"]:
-            raise ScenarioError(path, f"must be ≤ {node['maximum']}{u}, got {describe(value)}",
-                                f"enter a number of at most {node['maximum']:g}{u}")
+            raise ScenarioError(path, f"must be > {_fmt(node['exclusiveMinimum'])}{u}, {got}",
+                                f"enter a number greater than {_fmt(node['exclusiveMinimum'])}{u}")
+        if lo is not None and not value >= lo:
+            if lo == 0 or allowed is None:
+                raise ScenarioError(path, f"must be ≥ {_fmt(lo)}{u}, {got}",
+                                    f"enter a number of at least {_fmt(lo)}{u}")
+            raise ScenarioError(path, f"must be ≥ {_fmt(lo)}{u} (allowed: {allowed}), {got}",
+                                f"enter a number {allowed}")
+        if hi is not None and not value <= hi:
+            if allowed is None:
+                raise ScenarioError(path, f"must be ≤ {_fmt(hi)}{u}, {got}",
+                                    f"enter a number of at most {_fmt(hi)}{u}")
+            raise ScenarioError(path, f"must be ≤ {_fmt(hi)}{u} (allowed: {allowed}), {got}",
+                                f"enter a number {allowed}")
+        if isinstance(value, int) and abs(value) > _FLOAT_MAX:     # no bound in the schema: still a float
+            raise ScenarioError(path, f"must be a finite number{f' ({unit})' if unit else ''}, {got}",
+                                f"enter a finite number{_in(unit)}")
 
     def check_string(self, value, node, path):
         if len(value) < node.get("minLength", 0):
