@@ -1,5 +1,5 @@
 """Hostile and absurd input on the engine (issue 9): plausible bounds, numbers a float cannot
-hold (to come: deep nesting, one-line messages, the last guard against NaN/inf).
+hold, deep nesting, one-line messages that name a field, and the last guard against NaN/inf.
 
 Sources: these are contract tests of DEVELOPERS.md ("one clear line naming the JSON path and
 what is allowed — never a traceback, never NaN or inf in a report"): common practice, no
@@ -19,7 +19,10 @@ import pytest
 import somaward
 from input_paths import numeric_fields, one_line, path_in_message, resolves
 from somaward import ScenarioError
-from somaward.schema_check import describe
+from somaward.errors import InternalError
+from somaward.export import fingerprint
+from somaward.report import non_finite
+from somaward.schema_check import MAX_DEPTH, describe, quote_key
 
 BASE = {"membrane": {"Rm": 20000, "Ri": 150, "Cm": 1.0}, "soma": {"diameter": 20},
         "branches": [{"id": "trunk", "parent": None, "length": 400, "diameter": 3.0},
@@ -259,3 +262,183 @@ def test_tapers_and_branch_points_at_bound_corners():
         _check_report(somaward.solve(sc))
         n += 1
     assert n == 8 * 16
+
+
+# ------------------------------------------------------------------ deep nesting
+def _nested(depth, leaf=1):
+    value = leaf
+    for _ in range(depth):
+        value = [value]
+    return value
+
+
+@pytest.mark.parametrize("depth", [MAX_DEPTH, 2_000, 100_000])
+@pytest.mark.parametrize("where", [["notes"], ["membrane", "Rm"], ["branches", 1, "end"], ["title", "x"]])
+def test_deep_nesting_is_one_line(where, depth):
+    """A list nested 2,000 deep in notes raised RecursionError in solve; now any nesting beyond
+    the limit is one line naming the field it sits in (its first keys), from solve and validate."""
+    sc = copy.deepcopy(BASE)
+    if where[0] == "title":
+        sc["title"] = {"x": _nested(depth)}
+    else:
+        node = sc
+        for key in where[:-1]:
+            node = node[key]
+        node[where[-1]] = _nested(depth)
+    for entry in (somaward.solve, somaward.validate):
+        with pytest.raises(ScenarioError) as info:
+            entry(sc)
+        _assert_one_line_error(info.value, sc)
+        assert str(info.value).startswith(_first_keys(where))
+        if depth > MAX_DEPTH:
+            assert "nested more than" in str(info.value)
+
+
+def _first_keys(where):
+    path = ""
+    for key in where:
+        path = f"{path}[{key}]" if isinstance(key, int) else (f"{path}.{key}" if path else key)
+    return path
+
+
+def test_deep_scenario_itself():
+    """The whole input a deep list: one line, path 'scenario'."""
+    with pytest.raises(ScenarioError, match=r"^scenario(\[0\])*: nested more than"):
+        somaward.solve(_nested(5_000))
+
+
+# ------------------------------------------------------------------ one line, naming a field
+ODD = ["", "a\nb", "a\r\nb", "x\u2028y", "x\u2029y", "x\x85y", "\x00", "tab\there", 'quote"s', "back\\slash",
+       "a.b", "[0]", "é", "键", "\U0001F600", "\u202Eevil", " ", "x" * 500, "\ud800"]
+
+
+@pytest.mark.parametrize("key", ODD, ids=[f"k{i}" for i in range(len(ODD))])
+@pytest.mark.parametrize("where", [[], ["membrane"], ["branches", 2, "cylinders", 0], ["synapse", "current"],
+                                   ["branches", 1, "end"], ["soma"]])
+def test_unknown_odd_keys_are_one_line_and_named(where, key):
+    """An unknown key with a newline, an empty key, a key with quotes, dots or brackets: the
+    message is one line and starts with the path of that key (the parent path plus the quoted
+    key), which leads back to it."""
+    sc = copy.deepcopy(BASE)
+    node = sc
+    for k in where:
+        node = node[k]
+    node[key] = 1
+    with pytest.raises(ScenarioError) as info:
+        somaward.solve(sc)
+    _assert_one_line_error(info.value, sc)
+    keys, rest = path_in_message(str(info.value))
+    assert keys[-1] == key or keys[-1].endswith("…") and key.startswith(keys[-1][:-1]), str(info.value)
+    assert "unknown" in rest or "must" in rest or "give either" in rest
+
+
+def test_empty_key_names_a_field():
+    """{"": 1} at the top and inside membrane (issue 9 class 5)."""
+    for where, path in (([], 'scenario[""]'), (["membrane"], 'membrane[""]')):
+        sc = copy.deepcopy(BASE)
+        node = sc
+        for k in where:
+            node = node[k]
+        node[""] = 1
+        with pytest.raises(ScenarioError) as info:
+            somaward.solve(sc)
+        assert str(info.value).startswith(path + ": unknown key"), str(info.value)
+
+
+@pytest.mark.parametrize("bad", ["a\nb", "x\u2028y", "\x85", "z" * 200, "a → b", "it's"])
+def test_branch_ids_in_messages_are_one_line(bad):
+    """Cycle, duplicate id, unknown parent, unknown synapse branch, end on an inner branch and a
+    killed end under the synapse, each with an id holding a line break or other odd text."""
+    edits = []
+    cyc = copy.deepcopy(BASE)
+    cyc["branches"][0]["id"] = bad
+    cyc["branches"][1]["parent"] = bad
+    cyc["branches"][2]["parent"] = bad
+    cyc["branches"][0]["parent"] = "taper"
+    edits.append(cyc)
+    dup = copy.deepcopy(BASE)
+    dup["branches"][1]["id"] = dup["branches"][2]["id"] = bad
+    edits.append(dup)
+    par = copy.deepcopy(BASE)
+    par["branches"][1]["parent"] = bad
+    edits.append(par)
+    syn = copy.deepcopy(BASE)
+    syn["synapse"]["branch"] = bad
+    edits.append(syn)
+    pth = copy.deepcopy(BASE)
+    pth["synapse"] = {"path": bad, "path_distance": 3}
+    edits.append(pth)
+    inner = copy.deepcopy(BASE)
+    inner["branches"][0]["id"] = bad
+    inner["branches"][1]["parent"] = inner["branches"][2]["parent"] = bad
+    inner["branches"][0]["end"] = "sealed"
+    edits.append(inner)
+    killed = copy.deepcopy(BASE)
+    killed["branches"][1]["id"] = killed["synapse"]["branch"] = bad
+    killed["branches"][1]["end"] = "killed"
+    killed["synapse"]["distance"] = 300
+    edits.append(killed)
+    for sc in edits:
+        with pytest.raises(ScenarioError) as info:
+            somaward.solve(sc)
+        _assert_one_line_error(info.value, sc)
+
+
+def test_cycle_message_keeps_plain_ids_bare():
+    """Plain ids read as before: (trunk → taper → trunk)."""
+    sc = copy.deepcopy(BASE)
+    sc["branches"][0]["parent"] = "taper"
+    with pytest.raises(ScenarioError, match=r"\(trunk → taper → trunk\)"):
+        somaward.validate(sc)
+
+
+@pytest.mark.parametrize("key, quoted", [("membrane", "membrane"), ("", '""'), ("a\nb", '"a\\nb"'),
+                                         ("x\u2028y", '"x\\u2028y"'), ("\U0001F600", '"\U0001F600"'),
+                                         ("\u200b", '"\\u200b"'), ("é", '"é"'), ("x" * 101, '"' + "x" * 100 + '…"')])
+def test_quote_key(key, quoted):
+    """Keys in paths: plain names bare, everything else a one-line JSON string."""
+    assert quote_key(key) == quoted
+
+
+def test_describe_never_raises_and_is_one_line():
+    """Values quoted in messages: huge integers by their size, deep lists by their type, text
+    with its line breaks escaped."""
+    assert describe(10 ** 5000) == "an integer of 5001 digits"
+    assert describe(_nested(5000)) == "a list"
+    for value in ("a\nb", "x\u2028y", ["a\nb"], {"k\n": 1}, float("nan"), 2.5, None, True, object()):
+        assert one_line(describe(value)), describe(value)
+
+
+# ------------------------------------------------------------------ the last guard
+def test_guard_turns_a_nan_into_an_internal_error(monkeypatch):
+    """A NaN reaching the report is a bug: solve raises InternalError (one line, the place and
+    the scenario's fingerprint), never returns the number."""
+    import somaward.report as rep
+
+    real = rep.equivalent_cylinder
+
+    def broken(*args, **kwargs):
+        return {**real(*args, **kwargs), "probe": float("nan")}
+
+    monkeypatch.setattr(rep, "equivalent_cylinder", broken)
+    with pytest.raises(InternalError) as info:
+        somaward.solve(copy.deepcopy(BASE))
+    msg = str(info.value)
+    assert one_line(msg)
+    assert "a NaN at equivalent_cylinder.probe" in msg
+    assert info.value.fingerprint == fingerprint(somaward.validate(copy.deepcopy(BASE)))
+    assert f"fingerprint {info.value.fingerprint}" in msg
+    assert isinstance(info.value, RuntimeError) and not isinstance(info.value, ScenarioError)
+
+
+@pytest.mark.parametrize("report, where", [
+    ({"a": 1.0, "b": [1.0] * 100 + [math.inf]}, "an infinity at b[100]"),
+    ({"a": [{"x": "s", "y": -math.inf}]}, "an infinity at a[0].y"),
+    ({"a\nb": {"": [None, math.nan]}}, 'a NaN at report["a\\nb"][""][1]'),
+    ({"big": [1e308] * 40}, None),                     # the sum overflows; every item is finite
+    ({"t": ["x"] * 50, "n": [None, 1, True, 2.0] * 20}, None),
+    ([[[[[float("nan")]]]]], "a NaN at report[0][0][0][0][0]"),
+])
+def test_non_finite_finds_the_place(report, where):
+    """The guard's search (derived: by construction of each input)."""
+    assert non_finite(report) == where

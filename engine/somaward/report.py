@@ -6,21 +6,24 @@ input site; ``_fold`` = 1/A; ``_log`` = ln(V_in/V_out) in nepers, computed witho
 """
 
 import math
+from itertools import chain, compress, repeat
 
 import numpy as np
 
 from ._version import __version__
 from .equivalent import equivalent_cylinder
+from .errors import InternalError
 from .frequency import centroid_delays_ms, complex_step_ms, laplace_of_hz, site_response
 from .export import fingerprint
 from .maps import map_points, path_points, tree_map_logs
 from .quantities import CAUTIONS
 from .sanity import electrotonic_warnings, geometry_warnings, membrane_warnings
 from .scenario import locate_synapse, rename_old_keys, validate
+from .schema_check import check_depth, join_path
 from .sites import point_terms
 from .tree import branch_section_indices, build_tree, solve_tree
 
-__all__ = ["solve"]
+__all__ = ["solve", "non_finite"]
 
 _LOG_UNDERFLOW = -708.0          # exp() below this is subnormal or 0
 
@@ -190,6 +193,7 @@ def solve(scenario):
     ScenarioError
         One line naming the field and what is allowed.
     """
+    check_depth(scenario)                      # before anything recursive
     scenario, warnings = rename_old_keys(scenario)
     sc = validate(scenario)
     warnings += membrane_warnings(sc["membrane"], sc["soma"]) + geometry_warnings(sc["branches"], sc["soma"])
@@ -229,7 +233,63 @@ def solve(scenario):
     report["stamp"] = {"engine_version": __version__, "fingerprint": fingerprint(sc),
                        "text": f"Somaward {__version__}, scenario {fingerprint(sc)}"}
     report["defaults_applied"] = defaults_applied(scenario, sc)
+    bad = non_finite({k: v for k, v in report.items() if k != "scenario"})   # (the input: checked finite)
+    if bad is not None:                        # the last guard: a bug, never a number
+        raise InternalError(bad, report["stamp"]["fingerprint"])
     return report
+
+
+def non_finite(value):
+    """Where ``value`` (a report) holds a NaN or an infinity, e.g. ``'a NaN at tau_m_ms'``, or None.
+
+    Iterative. Each level of the report is checked as one batch (all lists and objects at that
+    depth together, with C-level iteration: ``map``, ``compress``), which is fast for the
+    report's many small rows; only when a batch holds a non-finite number is the report walked
+    item by item to name the place.
+    """
+    if _all_finite(value):
+        return None
+    stack = [(value, None, None)]                  # (node, parent entry, key in parent)
+    while stack:
+        entry = stack.pop()
+        node = entry[0]
+        for key, sub in (node.items() if isinstance(node, dict) else enumerate(node)):
+            if isinstance(sub, (list, dict)):
+                stack.append((sub, entry, key))
+            elif isinstance(sub, float) and not math.isfinite(sub):
+                keys = [key]
+                while entry[1] is not None:
+                    keys.append(entry[2])
+                    entry = entry[1]
+                path = ""
+                for k in reversed(keys):
+                    path = join_path(path, k, root="report")
+                return f"{'a NaN' if sub != sub else 'an infinity'} at {path}"
+    return None
+
+
+_NO_FLOATS = frozenset({str, bool, int, type(None)})
+_NUMBERS = frozenset({float, bool, int, type(None)})
+
+
+def _all_finite(value):
+    lists = [value] if isinstance(value, list) else []
+    dicts = [value] if isinstance(value, dict) else []
+    while lists or dicts:
+        rest = []
+        for seq in lists:                       # long lists of plain numbers or text: sum or skip
+            kinds = set(map(type, seq)) if len(seq) > 32 else None
+            if kinds is None or not kinds <= _NUMBERS | _NO_FLOATS:
+                rest.append(seq)
+            elif not kinds <= _NO_FLOATS and not math.isfinite(sum(filter(None, seq), 0.0)) \
+                    and not all(map(math.isfinite, filter(None, seq))):       # (a sum may overflow)
+                return False
+        items = list(chain(chain.from_iterable(rest), chain.from_iterable(map(dict.values, dicts))))
+        if not all(map(math.isfinite, compress(items, map(isinstance, items, repeat(float))))):
+            return False
+        lists = list(compress(items, map(isinstance, items, repeat(list))))
+        dicts = list(compress(items, map(isinstance, items, repeat(dict))))
+    return True
 
 
 def defaults_applied(given, validated, path=""):

@@ -8,7 +8,7 @@ state (ids, parents, cycles, where the synapse may sit), and the defaults filled
 import math
 
 from .errors import ScenarioError
-from .schema_check import check, describe, did_you_mean, load_schema
+from .schema_check import check, check_depth, describe, did_you_mean, load_schema
 
 __all__ = ["validate", "default_frequencies_hz", "load_schema", "MAX_MAP_POINTS", "locate_synapse",
            "rename_old_keys"]
@@ -66,6 +66,7 @@ def validate(scenario):
     ScenarioError
         For the first rule broken, naming its JSON path.
     """
+    check_depth(scenario)                       # before anything recursive
     out = check(rename_old_keys(scenario)[0])
     branches = out["branches"]
     index = _check_ids(branches)
@@ -109,10 +110,10 @@ def _check_parents(branches, index):
         if p is None:
             continue
         if p not in index:
-            raise ScenarioError(f"branches[{i}].parent", f"no branch has id {p!r}" + did_you_mean(p, index)
+            raise ScenarioError(f"branches[{i}].parent", f"no branch has id {describe(p, 80)}" + did_you_mean(p, index)
                                 + " (use null for a branch leaving the soma)")
         if p == b["id"]:
-            raise ScenarioError(f"branches[{i}].parent", f"a branch cannot be its own parent ({p!r})")
+            raise ScenarioError(f"branches[{i}].parent", f"a branch cannot be its own parent ({describe(p, 80)})")
         children[index[p]].append(i)
     _check_cycles(branches, index)
     return children
@@ -129,11 +130,19 @@ def _check_cycles(branches, index):
             i = None if p is None else index[p]
         if i is not None and state[i] == 1:
             loop = chain[chain.index(i):] + [i]
-            names = " → ".join(branches[j]["id"] for j in loop)
+            names = " → ".join(_id_words(branches[j]["id"]) for j in loop[:6])
+            names += " → …" if len(loop) > 6 else ""
             raise ScenarioError(f"branches[{i}].parent", f"the parent chain loops back on itself ({names}); "
                                 "every branch must lead to the soma")
         for j in chain:
             state[j] = 2
+
+
+def _id_words(bid):
+    """A branch id inside a message: bare when it reads unambiguously on one line, else quoted."""
+    if bid.isprintable() and len(bid) <= 60 and not any(c in bid for c in " →'\"()"):
+        return bid
+    return describe(bid, 60)
 
 
 def _fill_ends(branches, children):
@@ -150,17 +159,21 @@ def _fill_ends(branches, children):
 def _check_synapse(syn, branches, index, children):
     if "branch" in syn:
         if syn["branch"] not in index:
-            raise ScenarioError("synapse.branch", f"no branch has id {syn['branch']!r}" + did_you_mean(syn["branch"], index))
+            raise ScenarioError("synapse.branch", f"no branch has id {describe(syn['branch'], 80)}"
+                                + did_you_mean(syn["branch"], index))
         i, dist, field = index[syn["branch"]], syn["distance"], "synapse.distance"
         length = branch_length_um(branches[i])
         if dist > length * (1 + _REL_TOL):
-            raise ScenarioError(field, f"must be ≤ {length:g} µm (the length of branch {syn['branch']!r}), got {describe(dist)}")
+            raise ScenarioError(field, f"must be ≤ {length:g} µm (the length of branch "
+                                f"{describe(syn['branch'], 80)}), got {describe(dist)}")
     else:
         if syn["path"] not in index:
-            raise ScenarioError("synapse.path", f"no branch has id {syn['path']!r}" + did_you_mean(syn["path"], index))
+            raise ScenarioError("synapse.path", f"no branch has id {describe(syn['path'], 80)}"
+                                + did_you_mean(syn["path"], index))
         i = index[syn["path"]]
         if children[i]:
-            raise ScenarioError("synapse.path", f"must name a terminal branch; {syn['path']!r} has child branches")
+            raise ScenarioError("synapse.path", f"must name a terminal branch; {describe(syn['path'], 80)} has "
+                                "child branches")
         i, dist, field = _on_path(syn, branches, index)
         length = branch_length_um(branches[i])
     at_end = not children[i] and dist >= length * (1 - _REL_TOL)
@@ -187,7 +200,7 @@ def _on_path(syn, branches, index):
     total = math.fsum(branch_length_um(branches[i]) for i in chain)
     if syn["path_distance"] > total * (1 + _REL_TOL):
         raise ScenarioError("synapse.path_distance", f"must be ≤ {total:g} µm (the path length from the soma "
-                            f"to the end of {syn['path']!r}), got {describe(syn['path_distance'])}")
+                            f"to the end of {describe(syn['path'], 80)}), got {describe(syn['path_distance'])}")
     i, dist = locate_synapse(syn, branches, index)
     return i, dist, "synapse.path_distance"
 

@@ -7,8 +7,12 @@ where no compiled validator is available). Supported keywords: type, properties,
 additionalProperties: false, items, minItems, maxItems, minLength, maxLength, enum, const,
 minimum, maximum, exclusiveMinimum, oneOf, $ref (local), default, and the annotations x-unit
 and x-message. ``tests/test_schema.py`` checks that it agrees with the ``jsonschema`` package.
-Numbers are compared with their bounds as Python numbers, so an integer of 10 000 digits is out
-of range rather than an OverflowError.
+
+Hostile input (issue 9): :func:`check_depth` refuses nesting beyond :data:`MAX_DEPTH` without
+recursing, before anything else looks at the value; numbers are compared with their bounds as
+Python numbers, so an integer of 10 000 digits is out of range rather than an OverflowError;
+and every key and value quoted in a message is escaped to one line (:func:`quote_key`,
+:func:`describe`).
 """
 
 import copy
@@ -16,11 +20,13 @@ import difflib
 import functools
 import json
 import math
+import re
 from importlib import resources
 
 from .errors import ScenarioError
 
-__all__ = ["load_schema", "check", "did_you_mean", "describe", "schema_fields", "field_of_path"]
+__all__ = ["load_schema", "check", "check_depth", "MAX_DEPTH", "did_you_mean", "describe", "quote_key",
+           "one_line", "join_path", "schema_fields", "field_of_path"]
 
 _TYPE_WORDS = {"object": "an object", "array": "a list", "string": "a string", "number": "a number",
                "null": "null", "boolean": "true or false"}
@@ -107,15 +113,26 @@ def field_of_path(path):
 
 
 def describe(value, limit=40):
-    """A short quotation of a user's value for an error message ('text', 12.5, null, …); integers
-    too long for a float are described by their number of digits (Python refuses to write an
-    integer of more than 4,300 digits as text)."""
+    """A short one-line quotation of a user's value for an error message ('text', 12.5, null, …).
+
+    Never raises: strings are quoted with their line breaks and other invisible characters
+    escaped, integers too long for a float are described by their number of digits, and values
+    that are not JSON are named by their type.
+    """
     if isinstance(value, str):
-        text = repr(value)
+        text = repr(value)                  # repr escapes every non-printable character
     elif isinstance(value, int) and not isinstance(value, bool) and abs(value) > _FLOAT_MAX:
         text = f"{'a negative' if value < 0 else 'an'} integer of {_digits(value)} digits"
+    elif isinstance(value, float):
+        text = json.dumps(value) if math.isfinite(value) else repr(value)
+    elif isinstance(value, (dict, list)):
+        try:
+            text = json.dumps(value, ensure_ascii=False, allow_nan=False)
+        except (TypeError, ValueError, RecursionError):
+            text = "an object" if isinstance(value, dict) else "a list"
+        text = one_line(text[:limit + 1])
     else:
-        text = json.dumps(value, ensure_ascii=False) if _jsonable(value) else repr(value)
+        text = json.dumps(value) if _jsonable(value) else type(value).__name__
     return text if len(text) <= limit else text[: limit - 1] + "…"
 
 
@@ -134,12 +151,38 @@ def _digits(n):
     return d
 
 
+def quote_key(key, limit=100):
+    """A key as it appears in a JSON path: bare when it is a plain name (``membrane``), else a
+    double-quoted JSON string with every invisible or line-breaking character escaped, so that
+    a path is always one line (``["a\\nb"]``, ``[""]``). Keys longer than ``limit`` characters
+    are cut, with … before the closing quote."""
+    if len(key) <= limit and _PLAIN_KEY.fullmatch(key):
+        return key
+    cut = key if len(key) <= limit else key[:limit]
+    text = json.dumps(cut, ensure_ascii=False)
+    text = "".join(c if c.isprintable() else _u_escape(c) for c in text)
+    return text if cut is key else text[:-1] + '…"'
+
+
+def _u_escape(c):
+    o = ord(c)
+    if o > 0xFFFF:                          # JSON writes astral characters as a surrogate pair
+        o -= 0x10000
+        return f"\\u{0xD800 + (o >> 10):04x}\\u{0xDC00 + (o & 0x3FF):04x}"
+    return f"\\u{o:04x}"
+
+
 def _jsonable(value):
     try:
         json.dumps(value, allow_nan=False)
         return True
     except (TypeError, ValueError):
         return False
+
+
+def one_line(text):
+    """``text`` with every character that would break or hide a line escaped (for messages)."""
+    return "".join(c if c.isprintable() else _u_escape(c) for c in text)
 
 
 def did_you_mean(word, choices):
@@ -198,10 +241,20 @@ def _in(unit):
     return f" in {unit}" if unit else ""
 
 
-def _join(path, key):
+_PLAIN_KEY = re.compile(r"[A-Za-z_][A-Za-z0-9_]*")
+
+
+def join_path(path, key, root="scenario"):
+    """The JSON path of ``key`` inside ``path``; ``""`` is the whole value, written ``root`` when
+    a path would otherwise start with a bracket (``scenario[""]``, ``scenario[0]``)."""
     if isinstance(key, int):
-        return f"{path}[{key}]"
-    return f"{path}.{key}" if path else key
+        return f"{path or root}[{key}]"
+    if not isinstance(key, str):
+        key = repr(key)
+    name = quote_key(key)
+    if name is key:
+        return f"{path}.{key}" if path else key
+    return f"{path or root}[{name}]"
 
 
 class _Checker:
@@ -314,7 +367,7 @@ class _Checker:
         items = node.get("items")
         if items is None:
             return list(value)
-        return [self.check(v, items, _join(path, i)) for i, v in enumerate(value)]
+        return [self.check(v, items, join_path(path, i)) for i, v in enumerate(value)]
 
     def check_object(self, value, node, path):
         props = node.get("properties", {})
@@ -322,7 +375,7 @@ class _Checker:
             if not isinstance(key, str):
                 raise ScenarioError(path, f"keys must be strings, got {describe(key)}")
             if node.get("additionalProperties", True) is False and key not in props:
-                raise ScenarioError(_join(path, key), "unknown key" + did_you_mean(key, props)
+                raise ScenarioError(join_path(path, key), "unknown key" + did_you_mean(key, props)
                                     + f" (allowed here: {', '.join(props)})",
                                     f"unknown entry {describe(key)}" + did_you_mean(key, props), path)
         for key in node.get("required", []):
@@ -330,11 +383,11 @@ class _Checker:
                 hint = self.resolve(props.get(key, {})).get("description", "").split(". ")[0]
                 raise ScenarioError(path or "scenario", f"missing required key {key!r}"
                                     + (f" ({hint[0].lower()}{hint[1:].rstrip('.')})" if hint else ""),
-                                    _plain_missing(self.resolve(props.get(key, {}))), _join(path, key))
+                                    _plain_missing(self.resolve(props.get(key, {}))), join_path(path, key))
         out = {}
         for key, sub in props.items():
             if key in value:
-                out[key] = self.check(value[key], sub, _join(path, key))
+                out[key] = self.check(value[key], sub, join_path(path, key))
             elif "default" in self.resolve(sub):
                 out[key] = copy.deepcopy(self.resolve(sub)["default"])
         return out
@@ -413,8 +466,37 @@ class _Checker:
             allowed = [a["properties"][key]["const"] for a in alts]
             if key in value and value[key] not in allowed:
                 words = ", ".join(describe(c) for c in allowed)
-                raise ScenarioError(_join(path, key), f"must be one of {words}, got {describe(value[key])}"
+                raise ScenarioError(join_path(path, key), f"must be one of {words}, got {describe(value[key])}"
                                     + did_you_mean(value[key], allowed))
+
+
+MAX_DEPTH = 32      # the schema nests 5 levels (scenario → branches → branch → cylinders → cylinder)
+
+
+def check_depth(value, limit=MAX_DEPTH):
+    """Raise a ScenarioError when lists and objects nest more than ``limit`` levels deep.
+
+    Runs before anything recursive (the schema walk, copies, error quotations), and does not
+    recurse itself, so a list nested 10⁵ deep is one line, not a RecursionError. The message
+    names the first few keys of the path to the too-deep value, which exist in the input.
+    """
+    if not isinstance(value, (dict, list)):
+        return
+    stack = [(value, 1, ())]
+    while stack:
+        node, depth, keys = stack.pop()
+        if depth > limit:
+            path = ""
+            for key in keys:
+                path = join_path(path, key)
+            raise ScenarioError(path or "scenario",
+                                f"nested more than {limit} levels deep (lists and objects in lists and "
+                                f"objects); no scenario field is nested more than 5 levels",
+                                "this entry is nested far too deep to be part of a scenario")
+        items = node.items() if isinstance(node, dict) else enumerate(node)
+        for key, sub in items:
+            if isinstance(sub, (dict, list)):
+                stack.append((sub, depth + 1, keys + (key,) if len(keys) < 4 else keys))
 
 
 def check(value, schema=None):
