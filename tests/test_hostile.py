@@ -384,6 +384,23 @@ def test_branch_ids_in_messages_are_one_line(bad):
         _assert_one_line_error(info.value, sc)
 
 
+@pytest.mark.parametrize("where", [["title"], ["notes"], ["branches", 0, "id"], ["branches", 1, "parent"],
+                                   ["synapse", "branch"]])
+def test_half_surrogates_in_text_are_refused(where):
+    """A Python str may hold half of a surrogate pair; no UTF-8 file can, and the fingerprint
+    (SHA-256 of the UTF-8 scenario) raised UnicodeEncodeError on it (found by the fuzz test's
+    first run). One line naming the field."""
+    sc = copy.deepcopy(BASE)
+    node = sc
+    for key in where[:-1]:
+        node = node[key]
+    node[where[-1]] = "tr\ud800unk"
+    with pytest.raises(ScenarioError) as info:
+        somaward.solve(sc)
+    _assert_one_line_error(info.value, sc, _first_keys(where))
+    assert "surrogate" in str(info.value)
+
+
 def test_cycle_message_keeps_plain_ids_bare():
     """Plain ids read as before: (trunk → taper → trunk)."""
     sc = copy.deepcopy(BASE)

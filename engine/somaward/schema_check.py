@@ -11,8 +11,8 @@ and x-message. ``tests/test_schema.py`` checks that it agrees with the ``jsonsch
 Hostile input (issue 9): :func:`check_depth` refuses nesting beyond :data:`MAX_DEPTH` without
 recursing, before anything else looks at the value; numbers are compared with their bounds as
 Python numbers, so an integer of 10 000 digits is out of range rather than an OverflowError;
-and every key and value quoted in a message is escaped to one line (:func:`quote_key`,
-:func:`describe`).
+every key and value quoted in a message is escaped to one line (:func:`quote_key`,
+:func:`describe`), and strings that UTF-8 cannot hold (half of a surrogate pair) are refused.
 """
 
 import copy
@@ -242,6 +242,7 @@ def _in(unit):
 
 
 _PLAIN_KEY = re.compile(r"[A-Za-z_][A-Za-z0-9_]*")
+_SURROGATE = re.compile("[\ud800-\udfff]")
 
 
 def join_path(path, key, root="scenario"):
@@ -358,6 +359,11 @@ class _Checker:
                                 else f"must have at least {node['minLength']} characters")
         if "maxLength" in node and len(value) > node["maxLength"]:
             raise ScenarioError(path, f"must have at most {node['maxLength']} characters, got {len(value)}")
+        half = _SURROGATE.search(value)
+        if half:                            # a Python str may hold one; no UTF-8 file or page can
+            raise ScenarioError(path, f"must be text that UTF-8 can hold; character {half.start() + 1} is half "
+                                f"of a UTF-16 surrogate pair (\\u{ord(half.group()):04x}), got {describe(value)}",
+                                "remove the character that is not text")
 
     def check_array(self, value, node, path):
         if len(value) < node.get("minItems", 0):
