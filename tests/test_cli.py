@@ -180,3 +180,18 @@ def test_missing_file():
 def test_bad_constant_argument():
     out = run("constants", "--Rm", "-5", "--Ri", "100", "--diameter", "1")
     assert out.returncode == 2 and "must be a finite number > 0, got -5" in out.stderr
+
+
+@pytest.mark.parametrize("args, option", [
+    (["--Rm", "1e308", "--Ri", "100", "--diameter", "2"], "--Rm"),
+    (["--Rm", "2e4", "--Ri", "100", "--diameter", "1e250"], "--diameter"),
+    (["--Rm", "2e4", "--Ri", "1e-300", "--diameter", "2"], "--Ri"),
+    (["--Rm", "2e4", "--Ri", "100", "--diameter", "2", "--length", "1e300"], "--length"),
+])
+def test_constants_rejects_absurd_magnitudes(args, option):
+    """Issue 9: the scenario schema's plausible bounds apply to the constants command's options:
+    exit 2, one line naming the option (common practice, no source)."""
+    r = run("constants", *args)
+    assert r.returncode == 2 and r.stdout == ""
+    lines = r.stderr.strip().splitlines()
+    assert len(lines) == 1 and lines[0].startswith(f"somaward: error: {option}: "), r.stderr

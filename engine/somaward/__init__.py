@@ -6,7 +6,7 @@ inside the few functions that need it, so the page can answer before scipy has l
 """
 
 from ._version import __version__
-from .errors import ScenarioError  # noqa: E402
+from .errors import InternalError, ScenarioError  # noqa: E402
 from .membrane import (  # noqa: E402
     ac_space_constant_um,
     input_resistance_infinite_Mohm,
@@ -22,6 +22,7 @@ __all__ = [
     "solve",
     "validate",
     "ScenarioError",
+    "InternalError",
     "space_constant_um",
     "membrane_time_constant_ms",
     "input_resistance_infinite_Mohm",

@@ -10,7 +10,7 @@ import math
 import sys
 from importlib import resources
 
-from .errors import ScenarioError
+from .errors import InternalError, ScenarioError
 from .export import FORMATS, render
 
 __all__ = ["main"]
@@ -24,15 +24,9 @@ class _Parser(argparse.ArgumentParser):
 
 
 def _read_scenario(path):
-    try:
-        text = sys.stdin.read() if path == "-" else open(path, encoding="utf-8").read()
-    except OSError as err:
-        raise ScenarioError("", f"{path}: cannot read the file ({err.strerror})") from None
-    try:
-        return json.loads(text)
-    except json.JSONDecodeError as err:
-        raise ScenarioError("", f"{'stdin' if path == '-' else path}: not valid JSON: {err.msg} at line "
-                            f"{err.lineno} column {err.colno}") from None
+    """The scenario in a file ('-': stdin), read as bytes and parsed with limits (see jsonin)."""
+    from .jsonin import load_path
+    return load_path(path)
 
 
 def _cmd_report(args):
@@ -82,9 +76,29 @@ def cylinder_constants(diameter, Rm, Ri, Cm=1.0, length=None):
     return out
 
 
+_CONSTANTS_OPTIONS = {"membrane.Rm": "--Rm", "membrane.Ri": "--Ri", "membrane.Cm": "--Cm",
+                      "branches[0].diameter": "--diameter", "branches[0].length": "--length"}
+
+
+def _check_constants_inputs(args):
+    """The options hold the scenario's fields, so the scenario schema's bounds apply to them."""
+    from .scenario import validate
+    cylinder = {"id": "c", "parent": None, "diameter": args.diameter,
+                "length": args.length if args.length is not None else 1.0}
+    try:
+        validate({"membrane": {"Rm": args.Rm, "Ri": args.Ri, "Cm": args.Cm}, "branches": [cylinder],
+                  "synapse": {"branch": "c", "distance": 0}})
+    except ScenarioError as err:
+        option = _CONSTANTS_OPTIONS.get(err.path)
+        if option is None:
+            raise
+        raise ScenarioError(option, err.rule) from None
+
+
 def _cmd_constants(args):
     from . import __version__
     from .quantities import CAUTIONS, CYLINDER_CONSTANTS, format_value, render_markup
+    _check_constants_inputs(args)
     values = cylinder_constants(args.diameter, args.Rm, args.Ri, args.Cm, args.length)
     if args.format == "json":
         inputs = {"diameter": args.diameter, "Rm": args.Rm, "Ri": args.Ri, "Cm": args.Cm, "length": args.length}
@@ -157,6 +171,9 @@ def main(argv=None):
     except ScenarioError as err:
         sys.stderr.write(f"somaward: error: {err}\n")
         return 2
+    except InternalError as err:       # the engine's fault, not the input's: say so, one line
+        sys.stderr.write(f"somaward: internal error (please report it with the scenario): {err}\n")
+        return 3
     except BrokenPipeError:
         return 0
     return 0
