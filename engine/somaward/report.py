@@ -1,8 +1,10 @@
 """``solve(scenario) -> report``: the one entry point used by the page, the CLI and the tests.
 
 The report is a JSON-serialisable dict whose keys carry their units (see DEVELOPERS.md).
-Fractions follow the conventions of Rall 1977: A = V_out/V_in ≤ 1 for current injected at the
-input site; ``_fold`` = 1/A; ``_log`` = ln(V_in/V_out) in nepers, computed without forming A.
+Words and ratios follow :mod:`somaward.quantities`: the voltage ratio (V_soma/V_syn for current
+injected at the synapse, V_syn/V_soma for current injected at the soma) is ≤ 1; ``_fold`` is the
+attenuation factor, its inverse (Rall & Rinzel 1973); ``_log`` the log attenuation in nepers,
+computed without forming the ratio.
 """
 
 import math
