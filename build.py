@@ -363,6 +363,28 @@ def engine_vocabulary() -> dict:
     return json.loads(proc.stdout)
 
 
+# What the page reads of each quantity (js/render.js builds plain text from the HTML forms).
+PAGE_FIELDS = ("label_html", "unit", "digits", "percent", "definition_html")
+
+
+def page_vocabulary(vocabulary: dict) -> dict:
+    """The vocabulary as the page embeds it, packed: the soma's in full (each quantity's page
+    fields only), the root's as the quantities and terms whose words differ
+    (js/vocabulary.js merges them back)."""
+    def trim(v):
+        return {**v, "quantities": {k: {f: q[f] for f in PAGE_FIELDS} for k, q in v["quantities"].items()}}
+    soma, out = trim(vocabulary["soma"]), {}
+    for rec, v in vocabulary.items():
+        if rec == "soma":
+            out[rec] = soma
+            continue
+        v = trim(v)
+        out[rec] = {"recording_site": rec,
+                    "quantities": {k: q for k, q in v["quantities"].items() if soma["quantities"].get(k) != q},
+                    "terms": {k: t for k, t in v["terms"].items() if soma["terms"].get(k) != t}}
+    return out
+
+
 def demo_json() -> str:
     """The invented demo cell (the branch table's starting content), as JSON that is safe
     inside a <script type="application/json"> element."""
@@ -415,7 +437,7 @@ def build(out: Path, pyodide_dir: Path | None = None, cdn: bool = False) -> dict
                "pyodide_version": PYODIDE_VERSION, "precache": sorted(hashes),
                "sections": SECTIONS, "demo_json": demo_json(), "vocabulary": vocabulary["soma"],
                "inputs": vocabulary["soma"]["inputs"],
-               "vocabulary_json": script_json(vocabulary),
+               "vocabulary_json": script_json(page_vocabulary(vocabulary)),
                "engine_version": wheels[0]["entry"]["version"]}
     render("index.html.j2", out / "index.html", context)
     versioned = ("css/page.css", "js/file-notice.js", "js/main.js", "js/worker.js",

@@ -6,8 +6,16 @@
 
 let data = null;
 
+// build.py packs the root's vocabulary as the words that differ from the soma's; merged here.
 function all() {
-  if (!data) data = JSON.parse(document.getElementById("somaward-vocabulary").textContent);
+  if (data) return data;
+  const packed = JSON.parse(document.getElementById("somaward-vocabulary").textContent);
+  data = { soma: packed.soma };
+  for (const [rec, diff] of Object.entries(packed)) {
+    if (rec === "soma") continue;
+    data[rec] = { ...packed.soma, recording_site: rec, quantities: { ...packed.soma.quantities, ...diff.quantities },
+      terms: { ...packed.soma.terms, ...diff.terms } };
+  }
   return data;
 }
 
