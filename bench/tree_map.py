@@ -62,7 +62,7 @@ def floor(n_values, rng):
     return lambda: (np.cosh(z), np.sinh(z))
 
 
-def baseline(tree, sec, y):
+def baseline(tree, sec):
     """Compartmental matrix on the same nodes; one splu, one solve per site (scipy)."""
     import scipy.sparse as sp
     from scipy.sparse.linalg import splu
@@ -105,12 +105,12 @@ def main(argv=None):
     rows = []
     for n in [int(s) for s in args.sizes.split(",")]:
         tree = build_tree(random_branches(n, rng), MEMBRANE, SOMA)
-        t_map, (sites, _, _) = timed(lambda: engine_map(tree), args.repeat)
+        t_map, (sites, _, _) = timed(lambda tree=tree: engine_map(tree), args.repeat)
         t_floor, _ = timed(floor(sites, rng), args.repeat)
         t_base = None
         if n <= 1000:
-            sec, y = map_points(tree, spacing_um=1e9)
-            t_base, _ = timed(baseline(tree, sec, y), 1)
+            sec, _ = map_points(tree, spacing_um=1e9)
+            t_base, _ = timed(baseline(tree, sec), 1)
         depth = len(tree.levels)
         rows.append((n, sites, depth, t_map, t_floor, t_base))
     print(f"{'cylinders':>9} {'sites':>7} {'levels':>6} {'map s':>9} {'s/site':>9} {'growth':>7} "

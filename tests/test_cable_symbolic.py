@@ -154,12 +154,12 @@ def test_engine_cable_functions_match_mpmath(seed):
 @pytest.mark.parametrize("end, ref", [
     ("sealed", lambda L: 1 / np.tanh(L)),      # R∞ coth L (Rall 1959)
     ("killed", lambda L: np.tanh(L)),          # R∞ tanh L (Rall 1977)
-    ("infinite", lambda L: 1.0),               # R∞ (Rall 1977)
+    ("infinite", lambda _L: 1.0),              # R∞ (Rall 1977)
 ])
 def test_cylinder_input_resistance_closed_forms(end, ref):
     """cable.cylinder_input_resistance_Mohm against sympy's evaluation of the same closed forms."""
     for big_l in (0.1, 1.0, 3.0):
-        sym = {"sealed": sp.coth, "killed": sp.tanh, "infinite": lambda v: 1}[end](sp.nsimplify(big_l))
+        sym = {"sealed": sp.coth, "killed": sp.tanh, "infinite": lambda _v: 1}[end](sp.nsimplify(big_l))
         got = float(cable.cylinder_input_resistance_Mohm(700.0, big_l, end))
         assert got == pytest.approx(700.0 * float(sp.N(sym, 30)), rel=1e-13)
         assert got == pytest.approx(700.0 * ref(big_l), rel=1e-13)

@@ -75,8 +75,9 @@ def test_md_uses_the_quantities_words():
     assert shown == expected
 
 
-@pytest.mark.parametrize("args", [["report", "-"], ["report", "-", "--format", "md"], ["report", "-", "--format", "tsv"],
-                                  ["report", "-", "--format", "csv"], ["report", "-", "--format", "latex"],
+@pytest.mark.parametrize("args", [["report", "-"], ["report", "-", "--format", "md"],
+                                  ["report", "-", "--format", "tsv"], ["report", "-", "--format", "csv"],
+                                  ["report", "-", "--format", "latex"],
                                   ["demo"], ["demo", "--format", "json"], ["demo", "--format", "csv"],
                                   ["constants", "--Rm", "20000", "--Ri", "150", "--diameter", "2"],
                                   ["constants", "--Rm", "20000", "--Ri", "150", "--diameter", "2", "--format", "json"]])
@@ -131,7 +132,7 @@ def test_constants_text_uses_the_quantities_words():
     lines = run(*args).stdout.splitlines()
     table = lines[:lines.index("")]
     assert len(table) == len(CYLINDER_CONSTANTS)
-    for line, (key, q) in zip(table, CYLINDER_CONSTANTS.items()):
+    for line, (key, q) in zip(table, CYLINDER_CONSTANTS.items(), strict=True):
         label, rest = line[:line.rindex("  ")].rstrip(), line[line.rindex("  "):].split()
         assert label == render_markup(q.label)
         assert rest[0] == format_value(values[key], digits=q.digits)
@@ -152,9 +153,12 @@ def _bad(mutate):
 
 
 @pytest.mark.parametrize("stdin,message", [
-    (_bad(lambda s: s["branches"][1].__setitem__("diameter", -1)), r"^somaward: error: branches\[1\]\.diameter: must be > 0 µm, got -1$"),
-    (_bad(lambda s: s["branches"][1].__setitem__("parent", "trnk")), r"branches\[1\]\.parent: no branch has id 'trnk'; did you mean 'trunk'\?"),
-    (_bad(lambda s: s["branches"][1].__setitem__("diamter", 1)), r"branches\[1\]\.diamter: unknown key; did you mean 'diameter'\?"),
+    (_bad(lambda s: s["branches"][1].__setitem__("diameter", -1)),
+     r"^somaward: error: branches\[1\]\.diameter: must be > 0 µm, got -1$"),
+    (_bad(lambda s: s["branches"][1].__setitem__("parent", "trnk")),
+     r"branches\[1\]\.parent: no branch has id 'trnk'; did you mean 'trunk'\?"),
+    (_bad(lambda s: s["branches"][1].__setitem__("diamter", 1)),
+     r"branches\[1\]\.diamter: unknown key; did you mean 'diameter'\?"),
     (_bad(lambda s: s["branches"][1].__setitem__("id", "trunk")), r"branches\[1\]\.id: duplicate id 'trunk'"),
     (_bad(lambda s: s["branches"][0].__setitem__("parent", "tuft")), r"parent: the parent chain loops back"),
     (_bad(lambda s: s["synapse"].__setitem__("distance", 301)), r"synapse\.distance: must be ≤ 300 µm"),

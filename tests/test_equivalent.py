@@ -18,6 +18,7 @@ import copy
 import json
 import math
 import sys
+from itertools import pairwise
 from pathlib import Path
 
 import jsonschema
@@ -33,7 +34,7 @@ from somaward.schema_check import load_schema
 from somaward.tree import build_tree
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
-from reference.nodal import NodalTree  # noqa: E402
+from reference.nodal import NodalTree
 
 MEM = {"Rm": 20000.0, "Ri": 150.0, "Cm": 1.0}
 SOMA = {"diameter": 18.0}
@@ -73,7 +74,8 @@ def _ideal_tree(symmetric, with_soma, seed=7, stems=(3.0, 2.0), depth=3):
         _grow(rng, f"s{j}", None, d, 0.0, depth, symmetric, branches)
     terminal = next(b["id"] for b in branches if b["id"].count(".") == depth and b["id"].startswith("s0"))
     sc = {"membrane": dict(MEM), "soma": dict(SOMA) if with_soma else None, "branches": branches,
-          "synapse": {"branch": terminal, "distance": 0.5 * branches[[b["id"] for b in branches].index(terminal)]["length"]},
+          "synapse": {"branch": terminal,
+                      "distance": 0.5 * branches[[b["id"] for b in branches].index(terminal)]["length"]},
           "frequencies_hz": FREQS_HZ}
     return sc
 
@@ -251,7 +253,7 @@ def test_departure_and_spread_grow_and_verdict_flips_at_tolerance(tolerance):
         deps.append(abs(eq["branch_points"][0]["departure"]))
         spreads.append(eq["terminal_electrotonic_distance_spread"])
         verdicts.append(eq["meets_conditions"])
-    assert all(b > a for a, b in zip(deps, deps[1:])) and all(b > a for a, b in zip(spreads, spreads[1:]))
+    assert all(b > a for a, b in pairwise(deps)) and all(b > a for a, b in pairwise(spreads))
     assert verdicts[0] and not verdicts[-1]
     flips = [i for i in range(1, len(verdicts)) if verdicts[i] != verdicts[i - 1]]
     assert len(flips) == 1
@@ -393,10 +395,12 @@ def test_report_is_finite_json(case):
     sc = {"killed": lambda: _two_daughters("killed", "killed"),
           "beyond": lambda: _two_daughters(x_a=1.5, x_b=0.2),
           "no_soma": lambda: dict(_two_daughters(), soma=None),
-          "one_stem": lambda: {"membrane": MEM, "branches": [{"id": "c", "parent": None, "length": 300.0, "diameter": 1.0}],
+          "one_stem": lambda: {"membrane": MEM,
+                               "branches": [{"id": "c", "parent": None, "length": 300.0, "diameter": 1.0}],
                                "synapse": {"branch": "c", "distance": 300.0}, "frequencies_hz": [0.0]},
           "loads": lambda: _two_daughters({"G": 0.0, "C": 1.0}, {"G": 0.0, "C": 0.0})}[case]()
-    sc["synapse"]["distance"] = min(sc["synapse"]["distance"], 0.95 * sc["branches"][-1 if case == "one_stem" else 1]["length"])
+    site_branch = sc["branches"][-1 if case == "one_stem" else 1]
+    sc["synapse"]["distance"] = min(sc["synapse"]["distance"], 0.95 * site_branch["length"])
     if case == "beyond":
         sc["synapse"]["distance"] = 1.4 * _lam_um(1.0)
     eq = solve(sc)["equivalent_cylinder"]
@@ -464,13 +468,14 @@ def test_rule_table_and_methods_sentence():
     (_, bp_cols, bp_rows), (_, cj_cols, cj_rows) = blocks
     for col in bp_cols + cj_cols:
         quantities.quantity(col)                     # every column is a defined quantity
-    bp = dict(zip(bp_cols, bp_rows[0]))
+    bp = dict(zip(bp_cols, bp_rows[0], strict=True))
     assert bp["equivalent_cylinder.branch_points[].parent"] == "trunk"
     assert bp["equivalent_cylinder.branch_points[].children"] == ["a", "b"]
     assert bp["equivalent_cylinder.branch_points[].ratio"] == r["equivalent_cylinder"]["branch_points"][0]["ratio"]
     assert bp["equivalent_cylinder.branch_points[].ok"] is True
-    cj = dict(zip(cj_cols, cj_rows[0]))
-    assert cj["equivalent_cylinder.cylinder_joins[].ok"] is False and cj["equivalent_cylinder.cylinder_joins[].cylinder"] == 2
+    cj = dict(zip(cj_cols, cj_rows[0], strict=True))
+    assert cj["equivalent_cylinder.cylinder_joins[].ok"] is False
+    assert cj["equivalent_cylinder.cylinder_joins[].cylinder"] == 2
     assert cj["equivalent_cylinder.cylinder_joins[].ratio"] == pytest.approx(1.5 ** 1.5, rel=1e-12)
     text = methods_sentence(r)
     assert text.endswith(".") and "did not meet" in text and "5 %" in text and "Rall 1962" in text
@@ -516,5 +521,5 @@ def test_cylinder_curve_is_the_sealed_cylinder_profile():
     L = mpmath.mpf(cyl["electrotonic_length"])
     xs, a = cyl["curve"]["electrotonic_distance"], cyl["curve"]["soma_to_site"]
     assert xs[0] == 0.0 and xs[-1] == pytest.approx(float(L), rel=1e-12)
-    for x, v in zip(xs, a):
+    for x, v in zip(xs, a, strict=True):
         assert v == pytest.approx(float(mpmath.cosh(L - x) / mpmath.cosh(L)), rel=1e-12)

@@ -182,7 +182,8 @@ def test_rule_table_heads_are_the_quantities():
     rows = list(csv.reader(io.StringIO(rule_table(rep, "tsv")), delimiter="\t"))
     heads = [r for r in rows if r and r[-1] == Q.label("equivalent_cylinder.branch_points[].ok")]
     assert len(heads) == 2
-    for head, prefix in zip(heads, ("equivalent_cylinder.branch_points[]", "equivalent_cylinder.cylinder_joins[]")):
+    prefixes = ("equivalent_cylinder.branch_points[]", "equivalent_cylinder.cylinder_joins[]")
+    for head, prefix in zip(heads, prefixes, strict=True):
         keys = [k for k in Q.QUANTITIES if k.startswith(prefix + ".") and k.count(".") == 2]
         by_label = {Q.label(k) + (f" ({Q.unit(k)})" if Q.unit(k) else ""): k for k in keys}
         for h in head:

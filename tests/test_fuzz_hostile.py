@@ -235,7 +235,7 @@ class Hang(Exception):
     pass
 
 
-def _alarm(signum, frame):
+def _alarm(_signum, _frame):
     raise Hang(f"a case ran past the {HANG_S} s hang guard")
 
 

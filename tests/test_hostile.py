@@ -149,7 +149,7 @@ def test_bounds_rejected_outside_with_range_unit_and_value(field):
         assert f"must be {sign} " in msg and msg.endswith(f", got {describe(value)}"), msg
         assert u.strip() in msg
         if sign != ">" and not (sign == "≥" and lo == 0):
-            assert f"(allowed: " in msg and u in msg.split("(allowed: ")[1], msg
+            assert "(allowed: " in msg and u in msg.split("(allowed: ")[1], msg
             assert "enter a number" in info.value.plain and "\n" not in info.value.plain
 
 

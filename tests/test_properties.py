@@ -12,7 +12,7 @@ import math
 
 import numpy as np
 import pytest
-from hypothesis import HealthCheck, assume, given, settings
+from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 import somaward
@@ -173,10 +173,11 @@ def test_splitting_changes_nothing(sc, bi, si, frac):
         assert _close(a["attenuation"]["steady_state"][key], b["attenuation"]["steady_state"][key]), key
     for block in ("site_to_soma", "soma_to_site"):
         for key in ("log_attenuation", "phase_deg"):
-            for x, y in zip(a["frequency_response"][block][key], b["frequency_response"][block][key]):
+            for x, y in zip(a["frequency_response"][block][key], b["frequency_response"][block][key], strict=True):
                 assert _close(x, y, abs_=1e-9), (block, key)
     for block in ("soma_input_impedance_Mohm", "site_input_impedance_Mohm"):
-        for x, y in zip(a["frequency_response"][block]["magnitude"], b["frequency_response"][block]["magnitude"]):
+        mag_a, mag_b = a["frequency_response"][block]["magnitude"], b["frequency_response"][block]["magnitude"]
+        for x, y in zip(mag_a, mag_b, strict=True):
             assert _close(x, y), block
 
 

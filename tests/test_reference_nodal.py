@@ -24,7 +24,7 @@ import pytest
 from mpmath import mp
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
-from reference.nodal import NodalTree, membrane_constants, rel_close  # noqa: E402
+from reference.nodal import NodalTree, membrane_constants, rel_close
 
 FREQS_HZ = [0.0] + [10.0 ** (-1 + 5 * k / 19) for k in range(20)]  # 0 Hz + 20 from 0.1 Hz to 10 kHz
 
@@ -364,14 +364,14 @@ def test_S10_constants_and_geometry(name):
         got = rep["lambda_um"][b["id"]]
         if isinstance(got, list):
             assert len(got) == len(secs), f"lambda_um[{b['id']}]"
-            for i, (g, lam) in enumerate(zip(got, lams)):
+            for i, (g, lam) in enumerate(zip(got, lams, strict=True)):
                 m.check(f"lambda_um[{b['id']}][{i}]", g, lam)
         else:
             assert len({s["diameter"] for s in secs}) == 1, f"lambda_um[{b['id']}] must be per section"
             m.check(f"lambda_um[{b['id']}]", got, lams[0])
-        big_l = mp.fsum(mp.mpf(s["length"]) / lam for s, lam in zip(secs, lams))
+        big_l = mp.fsum(mp.mpf(s["length"]) / lam for s, lam in zip(secs, lams, strict=True))
         m.check(f"electrotonic_length[{b['id']}]", rep["electrotonic_length"][b["id"]], big_l)
-        for i, (s, lam) in enumerate(zip(secs, lams)):
+        for i, (s, lam) in enumerate(zip(secs, lams, strict=True)):
             if b["id"] in rep.get("cylinders", {}):
                 row = rep["cylinders"][b["id"]][i]
                 m.check(f"sections[{b['id']}][{i}].lambda_um", row["lambda_um"], lam)
@@ -478,7 +478,7 @@ def test_S10_tree_map_points(name):
     assert len(picks) >= 4
     sites = tuple((tm["branch"][i], tm["distance_um"][i]) for i in picks)
     t = reference_tree(name, sites)
-    for i, site in zip(picks, sites):
+    for i, site in zip(picks, sites, strict=True):
         node = t.node(site)
         v_in, v_out = t.voltages(f, node), t.voltages(f, 0)
         a_in, a_out = abs(v_in[0] / v_in[node]), abs(v_out[node] / v_out[0])
@@ -533,7 +533,7 @@ def test_reference_precision_is_enough_for_long_thin():
     for dps in (60, 80):
         r = NodalTree(sc, sites=[site], dps=dps).site_response(10000.0, site)
         vals.append((-mp.log(abs(r["a_soma_to_site"])), -mp.log(abs(r["a_site_to_soma"])), r["phase_soma_to_site"]))
-    for a, b in zip(*vals):
+    for a, b in zip(*vals, strict=True):
         assert abs(a - b) < 1e-25 * abs(b)
     assert vals[0][0] > 50  # really a steep attenuation
     assert math.isfinite(float(vals[0][2]))

@@ -149,7 +149,8 @@ def mutated(draw):
         container[key] = bad
     elif kind == "bad_number":
         container, key, rule = draw(st.sampled_from([n for n in _numbers(sc) if n[2] != "any"]))
-        container[key] = draw(st.sampled_from([-1.0, -1e-9, -5]) if rule == "nonneg" else st.sampled_from([0, 0.0, -2.5]))
+        bad = [-1.0, -1e-9, -5] if rule == "nonneg" else [0, 0.0, -2.5]
+        container[key] = draw(st.sampled_from(bad))
     elif kind == "unknown_key":
         _, obj = draw(st.sampled_from(_objects(sc)))
         obj[draw(st.sampled_from(["bogus", "lenght", "Rn", "diam", "tau_rize"]))] = 1.0
@@ -158,7 +159,8 @@ def mutated(draw):
         required = {"": ["membrane", "branches", "synapse"], "membrane": ["Rm", "Ri"], "soma": ["diameter"],
                     "current": [k for k in obj if k != "shape"] + ["shape"], "cylinder": ["length", "diameter"],
                     "end": ["G"], "synapse": [k for k in obj if k != "current"],
-                    "branch": ["id", "parent"] + (["cylinders"] if "cylinders" in obj else ["length", "diameter"])}[where]
+                    "branch": ["id", "parent"] + (["cylinders"] if "cylinders" in obj
+                                                  else ["length", "diameter"])}[where]
         del obj[draw(st.sampled_from(required))]
     elif kind == "length_and_cylinders":
         b = draw(st.sampled_from(sc["branches"]))
@@ -179,9 +181,10 @@ def mutated(draw):
                                          {"G": "1"}, {}]))
     elif kind == "current":
         sc["synapse"]["current"] = draw(st.sampled_from([
-            {"shape": "beta", "tau": 1, "peak": 1}, {"shape": "alpha", "peak": 1}, {"shape": "alpha", "tau": 0, "peak": 1},
-            {"shape": "dual_exponential", "tau_rise": 1, "peak": 1}, {"tau": 1, "peak": 1}, "alpha", 5,
-            {"shape": "alpha", "tau": 1, "peak": 1, "tau_rise": 1}, {"shape": "dual_exponential", "tau": 1, "peak": 1}]))
+            {"shape": "beta", "tau": 1, "peak": 1}, {"shape": "alpha", "peak": 1},
+            {"shape": "alpha", "tau": 0, "peak": 1}, {"shape": "dual_exponential", "tau_rise": 1, "peak": 1},
+            {"tau": 1, "peak": 1}, "alpha", 5, {"shape": "alpha", "tau": 1, "peak": 1, "tau_rise": 1},
+            {"shape": "dual_exponential", "tau": 1, "peak": 1}]))
     elif kind == "soma":
         sc["soma"] = draw(st.sampled_from([{}, {"Rm": 1000.0}, "big", [], 3.0, {"diameter": 10, "x": 1},
                                            {"diameter": -1}, {"diameter": "10"}, True]))
@@ -227,7 +230,8 @@ def test_schema_and_engine_agree(sc):
 @pytest.mark.parametrize("value", [math.nan, math.inf, -math.inf])
 def test_non_finite_numbers_rejected_by_engine(value):
     """Non-finite numbers are outside JSON; the engine rejects them (no schema comparison)."""
-    sc = {"membrane": {"Rm": 20000, "Ri": value}, "branches": [{"id": "a", "parent": None, "length": 10, "diameter": 1}],
+    sc = {"membrane": {"Rm": 20000, "Ri": value},
+          "branches": [{"id": "a", "parent": None, "length": 10, "diameter": 1}],
           "synapse": {"branch": "a", "distance": 1}}
     with pytest.raises(ScenarioError, match=r"^membrane\.Ri: must be a finite number"):
         somaward.validate(sc)

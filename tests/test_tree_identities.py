@@ -56,7 +56,8 @@ def br(bid, parent, d_um, big_l, **kw):
 
 def z_complex(block):
     """Complex values from a reported {magnitude, phase_deg} block."""
-    return np.array([m * np.exp(1j * math.radians(p)) for m, p in zip(block["magnitude"], block["phase_deg"])])
+    pairs = zip(block["magnitude"], block["phase_deg"], strict=True)
+    return np.array([m * np.exp(1j * math.radians(p)) for m, p in pairs])
 
 
 # ---------------------------------------------------------------------------------------- S5
@@ -100,7 +101,7 @@ def test_s5_equivalent_cylinder_rall_1962(soma, two_stems):
     # and the cylinder itself is the closed form of S9 (no soma: Y = tanh(kL)/R∞, Rall 1959)
     if soma is None:
         zc = z_complex(tree["frequency_response"]["soma_input_impedance_Mohm"])
-        for f, z in zip(FREQS, zc):
+        for f, z in zip(FREQS, zc, strict=True):
             k = mpmath.sqrt(1 + s_of_hz(f) * TAU_MS)
             ref = r_inf_Mohm(d_eq) / (k * mpmath.tanh(k))
             assert abs(z / complex(ref) - 1) < TOL
@@ -121,7 +122,8 @@ def mixed_tree():
     """Invented tree: soma-less or soma variants, tapers, killed / infinite / lumped / sealed ends."""
     return [
         {"id": "apical", "parent": None, "cylinders": [{"length": 120, "diameter": 3.0},
-                                                      {"length": 90, "diameter": 2.2}, {"length": 60, "diameter": 1.6}]},
+                                                      {"length": 90, "diameter": 2.2},
+                                                      {"length": 60, "diameter": 1.6}]},
         {"id": "obl", "parent": "apical", "length": 180, "diameter": 0.7, "end": "killed"},
         {"id": "tuft", "parent": "apical", "length": 260, "diameter": 1.1},
         {"id": "t1", "parent": "tuft", "length": 140, "diameter": 0.5, "end": {"G": 0.8, "C": 2.0}},
@@ -210,7 +212,7 @@ def test_s9_soma_plus_sealed_cylinder_rall_1959(end, soma_rm):
                                 {"diameter": dsoma, "Rm": soma_rm}))
     area_cm2 = math.pi * (dsoma * 1e-4) ** 2
     fr = r["frequency_response"]["soma_input_impedance_Mohm"]
-    for f, mag, ph in zip(FREQS, fr["magnitude"], fr["phase_deg"]):
+    for f, mag, ph in zip(FREQS, fr["magnitude"], fr["phase_deg"], strict=True):
         s = mpmath.mpc(s_of_hz(f))
         k = mpmath.sqrt(1 + s * TAU_MS)
         y_soma = area_cm2 * (1 / mpmath.mpf(soma_rm) + s * CM * 1e-3) * 1e6      # µS (µF·1/ms = 1e-3 S)
@@ -234,7 +236,7 @@ def test_site_to_soma_with_soma_independent_of_distal_end(end):
     d, big_l, dsoma, x = 1.5, 1.3, 15.0, 0.7
     r = somaward.solve(scenario([br("cyl", None, d, big_l, end=end)], {"branch": "cyl", "distance": x * lam_um(d)},
                                 {"diameter": dsoma}))
-    for f, mag in zip(FREQS, r["frequency_response"]["site_to_soma"]["magnitude"]):
+    for f, mag in zip(FREQS, r["frequency_response"]["site_to_soma"]["magnitude"], strict=True):
         s = mpmath.mpc(s_of_hz(f))
         k = mpmath.sqrt(1 + s * TAU_MS)
         ys = g_soma_uS(dsoma) * (1 + s * TAU_MS)
@@ -254,8 +256,9 @@ def test_f2_zero_hz_equals_steady_state():
             assert fr[key]["log_attenuation"][0] == pytest.approx(st[f"{key}_log"], rel=TOL)
             assert fr[key]["phase_deg"][0] == 0.0
         assert fr["transfer_impedance_Mohm"]["magnitude"][0] == pytest.approx(r["transfer_resistance_Mohm"], rel=TOL)
-        assert fr["site_input_impedance_Mohm"]["magnitude"][0] == pytest.approx(r["site_input_resistance_Mohm"], rel=TOL)
-        assert fr["soma_input_impedance_Mohm"]["magnitude"][0] == pytest.approx(r["soma_input_resistance_Mohm"], rel=TOL)
+        for where in ("site", "soma"):
+            assert fr[f"{where}_input_impedance_Mohm"]["magnitude"][0] == pytest.approx(
+                r[f"{where}_input_resistance_Mohm"], rel=TOL)
 
 
 @pytest.mark.parametrize("x_frac", [0.3, 1.0])
@@ -294,7 +297,7 @@ def test_f3_log_attenuation_additive_along_path():
         apical_mid = (int(tree.parent[sec["apical"][1]]), 30.0)   # the middle section of the taper
         root = (sec["apical"][0], 0.0)
         basal = (sec["basal2"][0], 120.0)
-        ratio = lambda a, b: transfer_log(sol, a, b) - transfer_log(sol, a, a)  # noqa: E731
+        ratio = lambda a, b, sol=sol: transfer_log(sol, a, b) - transfer_log(sol, a, a)  # noqa: E731
         for i, j, k in [(t1, tuft_end, t2), (t2, tuft_end, t1), (t1, apical_mid, root), (root, apical_mid, t1),
                         (t1, root, basal), (basal, root, t2), (t1, tuft_end, root)]:
             lhs = ratio(i, k)
@@ -339,7 +342,8 @@ def test_centroid_delay_is_derivative_and_phase_delay_limit(soma, syn_branch, y_
         ref = -float(mpmath.diff(f, 0, h=mpmath.mpf(1e-4) / TAU_MS))
         assert r[rep] == pytest.approx(ref, rel=1e-6), key
         assert r[rep] > 0
-    assert r["frequency_response"]["site_to_soma"]["phase_delay_ms"][0] == pytest.approx(r["centroid_delay_ms"], rel=1e-6)
+    delay_0hz = r["frequency_response"]["site_to_soma"]["phase_delay_ms"][0]
+    assert delay_0hz == pytest.approx(r["centroid_delay_ms"], rel=1e-6)
     assert r["frequency_response"]["soma_to_site"]["phase_delay_ms"][0] == pytest.approx(
         r["centroid_delay_soma_to_site_ms"], rel=1e-6)
 

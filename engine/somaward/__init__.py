@@ -6,8 +6,8 @@ inside the few functions that need it, so the page can answer before scipy has l
 """
 
 from ._version import __version__
-from .errors import InternalError, ScenarioError  # noqa: E402
-from .membrane import (  # noqa: E402
+from .errors import InternalError, ScenarioError
+from .membrane import (
     ac_space_constant_um,
     input_resistance_infinite_Mohm,
     membrane_time_constant_ms,
@@ -15,8 +15,8 @@ from .membrane import (  # noqa: E402
     space_constant_um,
     sphere_input_resistance_Mohm,
 )
-from .report import solve  # noqa: E402
-from .scenario import validate  # noqa: E402
+from .report import solve
+from .scenario import validate
 
 __all__ = [
     "solve",

@@ -40,16 +40,15 @@ def _cmd_demo(args):
     sys.stdout.write(render(solve(json.loads(text)), args.format))
 
 
-def _positive(name):
-    def parse(text):
-        try:
-            value = float(text)
-        except ValueError:
-            raise argparse.ArgumentTypeError(f"must be a number, got {text!r}") from None
-        if not (math.isfinite(value) and value > 0):
-            raise argparse.ArgumentTypeError(f"must be a finite number > 0, got {text}")
-        return value
-    return parse
+def _positive_number(text):
+    """An option's value as a finite number > 0 (argparse names the option in its message)."""
+    try:
+        value = float(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"must be a number, got {text!r}") from None
+    if not (math.isfinite(value) and value > 0):
+        raise argparse.ArgumentTypeError(f"must be a finite number > 0, got {text}")
+    return value
 
 
 CONSTANTS_ORDER = ("lambda_um", "tau_m_ms", "input_resistance_infinite_Mohm", "electrotonic_length",
@@ -118,7 +117,7 @@ def _cmd_constants(args):
         print(f"Caution: {caution}")
 
 
-def _cmd_schema(args):
+def _cmd_schema(_args):
     sys.stdout.write(resources.files("somaward").joinpath("scenario.schema.json").read_text("utf-8"))
 
 
@@ -155,7 +154,7 @@ def build_parser():
         label, unit = fields[path]
         extra = " (adds L and the input resistances with a sealed or killed far end)" if opt == "--length" else ""
         dflt = f"; {kw['default']:g} if not given" if kw.get("default") else ""
-        c.add_argument(opt, type=_positive(opt[2:]), help=f"{label}, {unit}{dflt}{extra}", **kw)
+        c.add_argument(opt, type=_positive_number, help=f"{label}, {unit}{dflt}{extra}", **kw)
     c.add_argument("--format", choices=("text", "json"), default="text",
                    help="text (a table for reading) or json (keys with their units, for scripts)")
     c.set_defaults(run=_cmd_constants)

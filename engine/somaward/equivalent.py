@@ -204,7 +204,7 @@ def terminal_rows(tree, tolerance=DEFAULT_TOLERANCE):
     areas = [a for _, _, _, a in geo]
     common, like = _common_end(tree, geo)
     infinite = common == "infinite"
-    length = max(xs) if infinite else math.fsum(a * x for a, x in zip(areas, xs)) / math.fsum(areas)
+    length = max(xs) if infinite else math.fsum(a * x for a, x in zip(areas, xs, strict=True)) / math.fsum(areas)
     end_ok = [_end_name(tree, sec) == common for _, sec, _, _ in geo]
     load = None
     if common == "load":
@@ -215,7 +215,7 @@ def terminal_rows(tree, tolerance=DEFAULT_TOLERANCE):
             end_ok[i] = _ok(max(abs(_rel(g[i], g_ref)), abs(_rel(c[i], c_ref))), tolerance)
         load = {"g_per_d32": g_ref, "c_per_d32": c_ref}
     rows = []
-    for (b, sec, x, area), e_ok in zip(geo, end_ok):
+    for (b, sec, x, area), e_ok in zip(geo, end_ok, strict=True):
         dep = x / length - 1.0 if length > 0 else 0.0
         x_ok = infinite or _ok(dep, tolerance)
         rows.append({"branch": tree.branch_ids[b], "electrotonic_distance": x, "membrane_area_um2": area,
@@ -445,8 +445,8 @@ def equivalent_cylinder(tree, scenario, sec, y_um, sol_dc=None):
         "cylinder": {"diameter_um": cyl["diameter_um"], "electrotonic_length": cyl["electrotonic_length"],
                      "electrotonic_length_min": terms["x_min"], "electrotonic_length_max": terms["x_max"],
                      "lambda_um": cyl["lambda_um"], "length_um": cyl["length_um"],
-                     "end": cyl["branches"][0]["end"], "stems": [tree.branch_ids[b] for b in
-                                                                 range(len(tree.branch_ids)) if tree.branch_parent[b] < 0],
+                     "end": cyl["branches"][0]["end"],
+                     "stems": [tree.branch_ids[b] for b in range(len(tree.branch_ids)) if tree.branch_parent[b] < 0],
                      "length_rule": LENGTH_RULE, "taper_rule": TAPER_RULE,
                      "curve": cylinder_curve(cyl_tree)},
         "comparison": _comparison(tree, cyl_tree, sec, y_um, sol_dc),
@@ -605,7 +605,8 @@ def methods_sentence(report):
         said += (f", and had no point at the synapse's X = {x:.3g}, which lies beyond its end, so it gives no "
                  f"transfer resistance or voltage ratio for the synapse")
     cylinder = (f"At steady state, the equivalent cylinder ({_plain('d_[eq] = (Σd_[stem]^[3/2])^[2/3]')} = "
-                f"{cyl['diameter_um']:.3g} {_unit('equivalent_cylinder.cylinder.diameter_um')}, electrotonic length L = {cyl['electrotonic_length']:.3g}, {how_l}) {said}; "
+                f"{cyl['diameter_um']:.3g} {_unit('equivalent_cylinder.cylinder.diameter_um')}, electrotonic length "
+                f"L = {cyl['electrotonic_length']:.3g}, {how_l}) {said}; "
                 f"it does not give the {_lower_first(label('site_input_resistance_Mohm', rec))} or the "
                 f"{_lower_first(label('attenuation.steady_state.site_to_soma', rec))}, since a point on it stands "
                 f"for input spread over every branch at the same X, and these were taken from the full tree.")

@@ -198,7 +198,7 @@ def rule_table(report, fmt, cautions=True):
     blocks = []
     for caption, cols, rows in rule_table_rows(report):
         blocks.append((Q.render_markup(caption, form, rec), [_head(c, rec, form) for c in cols],
-                       [[_cell(Q.format_value(v, c), fmt) for v, c in zip(r, cols)] for r in rows]))
+                       [[_cell(Q.format_value(v, c), fmt) for v, c in zip(r, cols, strict=True)] for r in rows]))
     if not blocks:
         blocks = [(_cell("The tree has no branch point and no diameter step: the 3/2 power rule has nothing "
                          "to apply to.", fmt), None, [])]
@@ -298,8 +298,9 @@ def _ends_sentences(scenario):
         elif total == 1:
             head = f"The terminal end, at {ids[0]}, was {kind if kind != 'load' else 'a load'}"
         else:
-            head = (f"The {'end' if len(ids) == 1 else 'ends'} of {_and(ids)} "
-                    f"{'was' if len(ids) == 1 else 'were'} {kind if kind != 'load' else ('a load' if len(ids) == 1 else 'loads')}")
+            what = kind if kind != "load" else ("a load" if len(ids) == 1 else "loads")
+            one = len(ids) == 1
+            head = f"The {'end' if one else 'ends'} of {_and(ids)} {'was' if one else 'were'} {what}"
         out.append(f"{head}: {meaning}" + (f" ({loads})." if kind == "load" else "."))
     return " ".join(out)
 

@@ -498,9 +498,11 @@ def render_markup(text, form="plain", recording_site="soma", item=None):
         out = _MARK.sub(lambda m: f"{m.group(1)}{m.group(2)}", text)
         escape = str
     elif form == "html":
-        out, escape = _render(text, _html_escape, lambda sub, t: f"<{'sub' if sub else 'sup'}>{t}</{'sub' if sub else 'sup'}>"), _html_escape
+        escape = _html_escape
+        out = _render(text, escape, lambda sub, t: f"<{'sub' if sub else 'sup'}>{t}</{'sub' if sub else 'sup'}>")
     elif form == "latex":
-        out, escape = _render(text, latex_escape, lambda sub, t: f"\\text{'sub' if sub else 'super'}script{{{t}}}"), latex_escape
+        escape = latex_escape
+        out = _render(text, escape, lambda sub, t: f"\\text{'sub' if sub else 'super'}script{{{t}}}")
     else:
         raise ValueError(f"form: must be 'plain', 'html' or 'latex', got {form!r}")
     return out.replace("\x00", "{item}" if item is None else escape(str(item)))

@@ -74,7 +74,7 @@ def _impedance(ln_z):
     return {"magnitude": _magnitudes(ln_z), "phase_deg": _listed(np.degrees(np.imag(ln_z)))}
 
 
-def _branch_tables(tree, branches):
+def _branch_tables(tree):
     lam, elec, secs, term_x = {}, {}, {}, {}
     for b in range(len(tree.branch_ids)):
         idx = branch_section_indices(tree, b)
@@ -142,7 +142,7 @@ def _frequency(tree, sec, y, freqs, warnings):
            "site_input_impedance_Mohm": _impedance(r["ln_z_site"]),
            "soma_input_impedance_Mohm": _impedance(r["ln_z_root"])}
     for key in ("site_to_soma", "soma_to_site"):
-        zero = [f for f, m in zip(freqs, out[key]["magnitude"]) if m == 0.0]
+        zero = [f for f, m in zip(freqs, out[key]["magnitude"], strict=True) if m == 0.0]
         if zero:
             warnings.append(f"frequency response {key.replace('_', ' ')}: |A| underflows double precision at "
                             f"{len(zero)} frequencies from {min(zero):g} Hz and is reported as 0 there; "
@@ -205,7 +205,7 @@ def solve(scenario):
     sec, y, cylinder = _site_section(tree, b, dist)
     sol_dc, steady, values = _steady_state(tree, sec, y, warnings)
     frequency, centroid = _frequency(tree, sec, y, sc["frequencies_hz"], warnings)
-    lam, elec, secs, term_x = _branch_tables(tree, sc["branches"])
+    lam, elec, secs, term_x = _branch_tables(tree)
     warnings += electrotonic_warnings(term_x)
     x_site = float(tree.x_start[sec] + y / tree.lambda_um[sec])
     report = {
@@ -305,6 +305,6 @@ def defaults_applied(given, validated, path=""):
             else:
                 out.extend(defaults_applied(given[key], value, sub))
     elif isinstance(validated, list) and isinstance(given, list):
-        for i, (g, v) in enumerate(zip(given, validated)):
+        for i, (g, v) in enumerate(zip(given, validated, strict=True)):
             out.extend(defaults_applied(g, v, f"{path}[{i}]"))
     return out

@@ -65,7 +65,7 @@ def geometry_warnings(branches, soma=None):
         out.append(f"soma.diameter = {soma['diameter']:g} µm is outside the usual {_span(SOMA_DIAMETER_USUAL)} µm "
                    "of a neuronal soma.")
     odd = []
-    for i, b in enumerate(branches):
+    for b in branches:
         for s in b.get("cylinders", [b]):
             if _outside(s["diameter"], DIAMETER_USUAL):
                 odd.append(f"branch {b['id']!r}: {s['diameter']:g} µm")

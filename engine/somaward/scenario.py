@@ -78,10 +78,10 @@ def validate(scenario):
         out["frequencies_hz"] = default_frequencies_hz()
     _check_synapse(out["synapse"], branches, index, children)
     _check_map_points(branches, out["map_spacing_um"])
-    return _ordered(out, scenario)
+    return _ordered(out)
 
 
-def _ordered(out, given):
+def _ordered(out):
     """Keys in a stable order: the schema's, so that exports and permalinks are reproducible."""
     order = ["title", "notes", "membrane", "soma", "branches", "synapse",
              "frequencies_hz", "map_spacing_um", "map_frequency_hz", "equivalent_cylinder"]

@@ -140,7 +140,7 @@ def build_tree(branches, membrane, soma=None):
     """
     rm, ri, cm = float(membrane["Rm"]), float(membrane["Ri"]), float(membrane["Cm"])
     rows, first_last, bparent, children = _section_rows(branches)
-    cols = list(zip(*rows))
+    cols = list(zip(*rows, strict=True))
     depth = np.array(cols[0], dtype=np.intp)
     perm = np.argsort(depth, kind="stable")          # level order, each branch's sections in order
     new_of_old = np.empty_like(perm)
@@ -169,7 +169,7 @@ def build_tree(branches, membrane, soma=None):
 def _levels(depth_sorted):
     cuts = np.flatnonzero(np.diff(depth_sorted)) + 1
     bounds = np.concatenate(([0], cuts, [len(depth_sorted)]))
-    return tuple((int(a), int(b)) for a, b in zip(bounds[:-1], bounds[1:]))
+    return tuple((int(a), int(b)) for a, b in zip(bounds[:-1], bounds[1:], strict=True))
 
 
 def _soma_terms(soma, rm, cm):
