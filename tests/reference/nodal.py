@@ -392,11 +392,6 @@ class NodalTree:
             return out
 
 
-def to_float(x):
-    """Nearest float of an mpf (for messages only; comparisons are done in mpmath)."""
-    return float(x) if not isinstance(x, mpmath.mpc) else complex(x)
-
-
 def rel_close(value, ref, rel=1e-9, abs_tol=1e-12):
     """|value - ref| <= max(rel*|ref|, abs_tol): the S10 tolerance, evaluated in mpmath."""
     if value is None or (isinstance(value, float) and not math.isfinite(value)):
