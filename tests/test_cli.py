@@ -35,6 +35,17 @@ def test_report_equals_solve(tmp_path):
     assert json.loads(out.stdout) == json.loads(json.dumps(somaward.solve(EXAMPLE)))
 
 
+def test_importing_the_command_runs_nothing(monkeypatch):
+    """pytest --doctest-modules imports every engine module: somaward.__main__ and somaward.cli
+    must not run the command on import (the arguments below would make it exit with code 2)."""
+    import importlib
+
+    monkeypatch.setattr(sys, "argv", ["somaward", "--no-such-option"])
+    for name in ("somaward.cli", "somaward.__main__"):
+        sys.modules.pop(name, None)
+        importlib.import_module(name)          # a SystemExit here fails the test
+
+
 def test_report_reads_stdin():
     out = run("report", "-", stdin=json.dumps(EXAMPLE))
     assert out.returncode == 0

@@ -65,7 +65,7 @@ def space_constant_um(diameter_um, rm_ohm_cm2, ri_ohm_cm):
     Notes
     -----
     Rall 1977; Johnston & Wu 1995, Foundations of Cellular Neurophysiology, ch. 4.
-    d = 1 µm, Rm = 20 000 Ω·cm², Ri = 200 Ω·cm gives λ = 500 µm.
+    d = 1 µm, Rm = 20 000 Ω·cm², Ri = 200 Ω·cm gives λ = 500 µm (docs/checks.md C2).
 
     Examples
     --------
@@ -81,6 +81,8 @@ def membrane_time_constant_ms(rm_ohm_cm2, cm_uF_cm2):
 
     Examples
     --------
+    Check C3 of docs/checks.md:
+
     >>> membrane_time_constant_ms(20000.0, 1.0)
     20.0
     """
@@ -93,6 +95,13 @@ def input_resistance_infinite_Mohm(diameter_um, rm_ohm_cm2, ri_ohm_cm):
     Notes
     -----
     Rall 1959, Exp Neurol 1:491; Jack, Noble & Tsien 1975.
+
+    Examples
+    --------
+    The cable of check C2 (d = 1 µm, Rm = 20 000 Ω·cm², Ri = 200 Ω·cm; docs/checks.md C4):
+
+    >>> round(float(input_resistance_infinite_Mohm(1.0, 20000.0, 200.0)), 4)
+    1273.2395
     """
     d_cm = np.asarray(diameter_um, dtype=float) / UM_PER_CM
     return (2.0 / math.pi) * math.sqrt(rm_ohm_cm2 * ri_ohm_cm) * d_cm**-1.5 * 1.0e-6
@@ -121,7 +130,12 @@ def sphere_input_resistance_Mohm(diameter_um, rm_ohm_cm2):
     Notes
     -----
     Basic membrane theory (e.g. Johnston & Wu 1995 ch. 2). D = 20 µm, Rm = 20 000 Ω·cm²
-    gives 1591.549 MΩ.
+    gives 1591.549 MΩ (docs/checks.md C5).
+
+    Examples
+    --------
+    >>> round(float(sphere_input_resistance_Mohm(20.0, 20000.0)), 3)
+    1591.549
     """
     area_cm2 = math.pi * (np.asarray(diameter_um, dtype=float) / UM_PER_CM) ** 2
     return rm_ohm_cm2 / area_cm2 * 1.0e-6
