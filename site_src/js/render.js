@@ -255,7 +255,7 @@ function captionNode(content) {
 // per entry of the report's per-branch object. Rows whose value the report does not hold
 // (undefined), and keys listed in omitNull whose value is null, are left out.
 // define: true, or the keys whose labels show their definition on demand.
-// Returns the table wrapped in a scrolling box; the table has data-table = name when given.
+// Returns the table in a box; the table has data-table = name when given.
 export function keyTable(vocab, report, { caption, keys, name, define = false, omitNull = [] }) {
   const defined = (k) => define === true || (Array.isArray(define) && define.includes(k));
   const table = el("table", captionNode(caption), "numbers key-table");
@@ -281,7 +281,8 @@ export function keyTable(vocab, report, { caption, keys, name, define = false, o
     } else row(key, pick(report, key));
   }
   table.append(tbody);
-  return scrollBox(table, table.caption.textContent);
+  // Three narrow columns need no scrolling box, and a definition on demand must not be clipped by one.
+  return el("div", table, "table-box");
 }
 
 // A table of a report list (e.g. equivalent_cylinder.branch_points): one row per item, one
