@@ -27,7 +27,7 @@ def cylinder(big_l, end="sealed", x=None, sections=None, freqs=(0.0,)):
     if sections is None:
         branch.update(length=length, diameter=1.0)
     else:
-        branch["cylinders"] = [{"length": length * f, "diameter": 1.0} for f in sections]
+        branch["cylinders"] = [{"length": length * fraction, "diameter": 1.0} for fraction in sections]
     return {"membrane": {"Rm": 20000.0, "Ri": 200.0, "Cm": 1.0}, "soma": None, "branches": [branch],
             "synapse": {"branch": "cyl", "distance": x * LAM_UM},
             "frequencies_hz": list(freqs), "map_spacing_um": max(length, 1.0)}

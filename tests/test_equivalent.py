@@ -147,8 +147,8 @@ def test_S5_ideal_tree_equals_cylinder_closed_form(symmetric, with_soma):
     assert eq["cylinder"]["electrotonic_length"] == pytest.approx(L_TARGET, rel=1e-12)
     x = _x_of_site(sc)
     fr = r["frequency_response"]
-    for i, f in enumerate(FREQS_HZ):
-        z_soma, a, z_tr = _cylinder_closed_form(f, d_eq, L_TARGET, x, sc["soma"])
+    for i, freq_hz in enumerate(FREQS_HZ):
+        z_soma, a, z_tr = _cylinder_closed_form(freq_hz, d_eq, L_TARGET, x, sc["soma"])
         assert _rel(_complex(fr["soma_input_impedance_Mohm"], i), z_soma) < 1e-9
         assert _rel(_complex(fr["soma_to_site"], i), a) < 1e-9
         assert _rel(_complex(fr["transfer_impedance_Mohm"], i), z_tr) < 1e-9
@@ -168,8 +168,8 @@ def test_S5_all_killed_ends():
     eq = r["equivalent_cylinder"]
     assert eq["meets_conditions"] and eq["end_condition"] == "killed" and eq["cylinder"]["end"] == "killed"
     d_eq, x, fr = (3.0 ** 1.5 + 2.0 ** 1.5) ** (2 / 3), _x_of_site(sc), r["frequency_response"]
-    for i, f in enumerate(FREQS_HZ):
-        z_soma, a, z_tr = _cylinder_closed_form(f, d_eq, L_TARGET, x, SOMA, "killed")
+    for i, freq_hz in enumerate(FREQS_HZ):
+        z_soma, a, z_tr = _cylinder_closed_form(freq_hz, d_eq, L_TARGET, x, SOMA, "killed")
         assert _rel(_complex(fr["soma_input_impedance_Mohm"], i), z_soma) < 1e-9
         assert _rel(_complex(fr["soma_to_site"], i), a) < 1e-9
         assert _rel(_complex(fr["transfer_impedance_Mohm"], i), z_tr) < 1e-9

@@ -209,7 +209,7 @@ def test_issue_examples_are_one_line(edit):
 
 
 # ------------------------------------------------------------------ bound corners
-RM, RI, CM = (1, 1e9), (1, 1e5), (0.01, 100)
+RM_OHM_CM2, RI_OHM_CM, CM_UF_CM2 = (1, 1e9), (1, 1e5), (0.01, 100)
 GEOMETRY = [(d, ell) for d in (1e-3, 1e3) for ell in (1e-3, 1e6)]
 SOMAS = [None, {"diameter": 0.1, "Rm": 1}, {"diameter": 0.1, "Rm": 1e9}, {"diameter": 1e4, "Rm": 1},
          {"diameter": 1e4, "Rm": 1e9}]
@@ -234,9 +234,10 @@ def test_uniform_cable_at_every_bound_corner():
     subnormal one: a finite report. 960 scenarios; the synapse and map frequency vary with the
     case number so each corner sees the proximal end, the middle and the far end."""
     n = 0
-    for (rm, ri, cm), (d, ell), soma, end in itertools.product(itertools.product(RM, RI, CM), GEOMETRY, SOMAS, ENDS):
+    membranes = itertools.product(RM_OHM_CM2, RI_OHM_CM, CM_UF_CM2)
+    for (rm_ohm_cm2, ri_ohm_cm, cm_uF_cm2), (d, ell), soma, end in itertools.product(membranes, GEOMETRY, SOMAS, ENDS):
         frac = (0.0, 0.5, 1.0)[n % 3] if end != "killed" else (0.0, 0.5)[n % 2]
-        sc = {"membrane": {"Rm": rm, "Ri": ri, "Cm": cm}, "soma": soma,
+        sc = {"membrane": {"Rm": rm_ohm_cm2, "Ri": ri_ohm_cm, "Cm": cm_uF_cm2}, "soma": soma,
               "branches": [{"id": "c", "parent": None, "length": ell, "diameter": d, "end": end}],
               "synapse": {"branch": "c", "distance": frac * ell}, "map_frequency_hz": (0, 1e6)[n % 2], **FAST}
         _check_report(somaward.solve(sc))
@@ -249,7 +250,8 @@ def test_tapers_and_branch_points_at_bound_corners():
     a branch point, lengths at their bounds, both synapse forms: a finite report."""
     corners = list(itertools.product((1e-3, 1e3), (1e-3, 1e6)))
     n = 0
-    for (rm, ri, cm), (a, b) in itertools.product(itertools.product(RM, RI, CM), itertools.product(corners, corners)):
+    membranes = itertools.product(RM_OHM_CM2, RI_OHM_CM, CM_UF_CM2)
+    for (rm_ohm_cm2, ri_ohm_cm, cm_uF_cm2), (a, b) in itertools.product(membranes, itertools.product(corners, corners)):
         end = ENDS[n % len(ENDS)]
         branches = [{"id": "t", "parent": None, "cylinders": [{"diameter": a[0], "length": a[1]},
                                                                 {"diameter": b[0], "length": b[1]}]},
@@ -257,8 +259,8 @@ def test_tapers_and_branch_points_at_bound_corners():
                     {"id": "y", "parent": "t", "diameter": a[0], "length": b[1]}]
         syn = ({"branch": "t", "distance": a[1] + b[1] / 2} if n % 2 else
                {"path": "y", "path_distance": a[1] + b[1] + b[1] * 0.999})
-        sc = {"membrane": {"Rm": rm, "Ri": ri, "Cm": cm}, "soma": SOMAS[n % len(SOMAS)], "branches": branches,
-              "synapse": syn, "map_frequency_hz": 1e6, **FAST}
+        sc = {"membrane": {"Rm": rm_ohm_cm2, "Ri": ri_ohm_cm, "Cm": cm_uF_cm2}, "soma": SOMAS[n % len(SOMAS)],
+              "branches": branches, "synapse": syn, "map_frequency_hz": 1e6, **FAST}
         _check_report(somaward.solve(sc))
         n += 1
     assert n == 8 * 16

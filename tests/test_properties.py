@@ -37,7 +37,7 @@ ENDS = st.one_of(st.sampled_from(["sealed", "killed", "infinite", None]),
 def scenarios(draw, max_branches=15, max_l=None, soma=None):
     """A semantically valid scenario. ``max_l``: per-section electrotonic length bound (then
     lengths are drawn in λ units, to reach L up to 50)."""
-    rm, ri, cm = draw(_f(5000, 100000)), draw(_f(70, 300)), draw(_f(0.5, 1.5))
+    rm_ohm_cm2, ri_ohm_cm, cm_uF_cm2 = draw(_f(5000, 100000)), draw(_f(70, 300)), draw(_f(0.5, 1.5))
     n = draw(st.integers(1, max_branches))
     branches, children = [], [[] for _ in range(n)]
     for i in range(n):
@@ -50,7 +50,7 @@ def scenarios(draw, max_branches=15, max_l=None, soma=None):
             if max_l is None:
                 length = draw(_f(2.0, 400.0))
             else:
-                lam = math.sqrt(rm * d * 1e-4 / (4 * ri)) * 1e4
+                lam = math.sqrt(rm_ohm_cm2 * d * 1e-4 / (4 * ri_ohm_cm)) * 1e4
                 length = draw(_f(0.01, max_l)) * lam
             secs.append({"length": length, "diameter": d})
         b = {"id": f"b{i}", "parent": None if parent is None else f"b{parent}"}
@@ -73,7 +73,7 @@ def scenarios(draw, max_branches=15, max_l=None, soma=None):
     j = draw(st.integers(0, n - 1))
     frac = draw(_f(0.0, 0.97 if branches[j].get("end") == "killed" else 1.0))
     total = sum(s["length"] for s in branches[j].get("cylinders", [branches[j]]))
-    sc = {"membrane": {"Rm": rm, "Ri": ri, "Cm": cm}, "branches": branches,
+    sc = {"membrane": {"Rm": rm_ohm_cm2, "Ri": ri_ohm_cm, "Cm": cm_uF_cm2}, "branches": branches,
           "synapse": {"branch": f"b{j}", "distance": frac * total},
           "frequencies_hz": list(FREQS), "map_spacing_um": 1e6}
     if soma_val is not None or draw(st.booleans()):

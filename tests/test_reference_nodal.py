@@ -36,8 +36,8 @@ def _thirty_digits():
         yield
 
 
-def _cyl(end, length=500, diameter=1.0, Rm=20000, Ri=200, Cm=1.0, soma=None):
-    sc = {"membrane": {"Rm": Rm, "Ri": Ri, "Cm": Cm},
+def _cyl(end, length=500, diameter=1.0, rm_ohm_cm2=20000, ri_ohm_cm=200, cm_uF_cm2=1.0, soma=None):
+    sc = {"membrane": {"Rm": rm_ohm_cm2, "Ri": ri_ohm_cm, "Cm": cm_uF_cm2},
           "branches": [{"id": "c", "parent": None, "length": length, "diameter": diameter, "end": end}]}
     if soma is not None:
         sc["soma"] = soma
@@ -122,21 +122,21 @@ def test_reference_root_sealed_site_to_root(end, freq_hz):
     assert abs(t.path_phase(freq_hz, ("c", 420), True) - expected) < 1e-24
 
 
-@pytest.mark.parametrize("rm_soma", [20000, 2500])
+@pytest.mark.parametrize("soma_rm_ohm_cm2", [20000, 2500])
 @pytest.mark.parametrize("freq_hz", [0.0, 1.0, 100.0, 10000.0])
-def test_reference_soma_plus_cylinder(rm_soma, freq_hz):
+def test_reference_soma_plus_cylinder(soma_rm_ohm_cm2, freq_hz):
     """S9 (Rall 1959; Rall 1969): soma + sealed cylinder,
     Y_in(s) = G_s*(1 + s*tau_soma) + k*tanh(k*L)/R_inf, k = sqrt(1+s*tau); with a somatic shunt
     (soma Rm != membrane Rm) tau_soma = Rm_soma*Cm and G_s = pi*D^2/Rm_soma."""
-    sc = _cyl("sealed", length=450, diameter=2.0, Rm=20000, Ri=150, Cm=0.9,
-              soma={"diameter": 22, "Rm": rm_soma})
+    sc = _cyl("sealed", length=450, diameter=2.0, rm_ohm_cm2=20000, ri_ohm_cm=150, cm_uF_cm2=0.9,
+              soma={"diameter": 22, "Rm": soma_rm_ohm_cm2})
     t = NodalTree(sc)
     s = t.s_of(freq_hz)
     k = mp.sqrt(1 + s * t.tau_ms)
     lam = membrane_constants(20000, 150, 0.9, 2.0)["lambda_um"]
-    gs = mp.pi * 22**2 / rm_soma * mp.mpf("0.01")  # uS
-    cm = mp.mpf(0.9)  # the binary float the scenario holds, not the decimal 0.9
-    y = gs * (1 + s * rm_soma * cm / 1000) + k * mp.tanh(k * 450 / lam) / t.r_inf_Mohm(2.0)
+    gs = mp.pi * 22**2 / soma_rm_ohm_cm2 * mp.mpf("0.01")  # uS
+    cm_uF_cm2 = mp.mpf(0.9)  # the binary float the scenario holds, not the decimal 0.9
+    y = gs * (1 + s * soma_rm_ohm_cm2 * cm_uF_cm2 / 1000) + k * mp.tanh(k * 450 / lam) / t.r_inf_Mohm(2.0)
     assert _close(1 / t.impedance(freq_hz, "soma", "soma"), y, 1e-25)
 
 
@@ -162,9 +162,9 @@ def test_reference_splitting_changes_nothing():
     split["branches"][0].pop("length"), split["branches"][0].pop("diameter")
     split["branches"][0]["cylinders"] = [{"length": 150, "diameter": 1.1}, {"length": 250, "diameter": 1.1}]
     a, b = NodalTree(one, sites=[("c", 400)]), NodalTree(split, sites=[("c", 37), ("c", 211)])
-    for f in (0.0, 500.0):
-        assert _close(a.impedance(f, "soma", "soma"), b.impedance(f, "soma", "soma"), 1e-25)
-        assert _close(a.impedance(f, ("c", 400), "soma"), b.impedance(f, ("c", 400), "soma"), 1e-25)
+    for freq_hz in (0.0, 500.0):
+        assert _close(a.impedance(freq_hz, "soma", "soma"), b.impedance(freq_hz, "soma", "soma"), 1e-25)
+        assert _close(a.impedance(freq_hz, ("c", 400), "soma"), b.impedance(freq_hz, ("c", 400), "soma"), 1e-25)
 
 
 # =============================================================== invented test trees
@@ -387,7 +387,7 @@ def test_S10_constants_and_geometry(name):
         m.check("soma.area_um2", so["area_um2"], mp.pi * d**2)
         m.check("soma.resistance_Mohm", so["resistance_Mohm"], 1 / t.G_soma_uS)
         m.check("soma.capacitance_pF", so["capacitance_pF"], 1000 * t.C_soma_nF)
-        m.check("soma.tau_ms", so["tau_ms"], t.soma_Rm * t.Cm / 1000)
+        m.check("soma.tau_ms", so["tau_ms"], t.soma_rm_ohm_cm2 * t.cm_uF_cm2 / 1000)
     m.done()
 
 
@@ -411,22 +411,22 @@ def test_S10_frequency_response(name):
     rep, m = engine_report(name), Mismatches(name)
     fr = rep["frequency_response"]
     assert len(fr["frequencies_hz"]) == len(FREQS_HZ)
-    for i, f in enumerate(FREQS_HZ):
-        assert fr["frequencies_hz"][i] == pytest.approx(f, rel=1e-15)
-        ref = reference_response(name, f)
+    for i, freq_hz in enumerate(FREQS_HZ):
+        assert fr["frequencies_hz"][i] == pytest.approx(freq_hz, rel=1e-15)
+        ref = reference_response(name, freq_hz)
         for way in ("site_to_soma", "soma_to_site"):
             a, ph, blk = ref["a_" + way], ref["phase_" + way], fr[way]
-            m.check(f"{way}.magnitude[{f:.4g} Hz]", blk["magnitude"][i], abs(a))
-            m.check(f"{way}.log_attenuation[{f:.4g} Hz]", blk["log_attenuation"][i], -mp.log(abs(a)))
-            m.check(f"{way}.phase_deg[{f:.4g} Hz]", blk["phase_deg"][i], ph * 180 / mp.pi)
-            if f > 0:
-                m.check(f"{way}.phase_delay_ms[{f:.4g} Hz]", blk["phase_delay_ms"][i],
-                        -ph / (2 * mp.pi * mp.mpf(f)) * 1000)
+            m.check(f"{way}.magnitude[{freq_hz:.4g} Hz]", blk["magnitude"][i], abs(a))
+            m.check(f"{way}.log_attenuation[{freq_hz:.4g} Hz]", blk["log_attenuation"][i], -mp.log(abs(a)))
+            m.check(f"{way}.phase_deg[{freq_hz:.4g} Hz]", blk["phase_deg"][i], ph * 180 / mp.pi)
+            if freq_hz > 0:
+                m.check(f"{way}.phase_delay_ms[{freq_hz:.4g} Hz]", blk["phase_delay_ms"][i],
+                        -ph / (2 * mp.pi * mp.mpf(freq_hz)) * 1000)
         for key, z, ph in (("transfer_impedance_Mohm", ref["z_transfer"], ref["phase_transfer"]),
                            ("site_input_impedance_Mohm", ref["z_site"], mp.arg(ref["z_site"])),
                            ("soma_input_impedance_Mohm", ref["z_soma"], mp.arg(ref["z_soma"]))):
-            m.check(f"{key}.magnitude[{f:.4g} Hz]", fr[key]["magnitude"][i], abs(z))
-            m.check(f"{key}.phase_deg[{f:.4g} Hz]", fr[key]["phase_deg"][i], ph * 180 / mp.pi)
+            m.check(f"{key}.magnitude[{freq_hz:.4g} Hz]", fr[key]["magnitude"][i], abs(z))
+            m.check(f"{key}.phase_deg[{freq_hz:.4g} Hz]", fr[key]["phase_deg"][i], ph * 180 / mp.pi)
     m.done()
 
 
@@ -471,8 +471,8 @@ def test_S10_tree_map_points(name):
     ways (|A| where map_frequency_hz > 0), path distance and X."""
     rep, m = engine_report(name), Mismatches(name)
     tm = rep["tree_map"]
-    f = TREES[name][0].get("map_frequency_hz", 0)
-    assert tm["frequency_hz"] == f
+    freq_hz = TREES[name][0].get("map_frequency_hz", 0)
+    assert tm["frequency_hz"] == freq_hz
     t0 = reference_tree(name)
     picks = _map_picks(tm, t0)
     assert len(picks) >= 4
@@ -480,7 +480,7 @@ def test_S10_tree_map_points(name):
     t = reference_tree(name, sites)
     for i, site in zip(picks, sites, strict=True):
         node = t.node(site)
-        v_in, v_out = t.voltages(f, node), t.voltages(f, 0)
+        v_in, v_out = t.voltages(freq_hz, node), t.voltages(freq_hz, 0)
         a_in, a_out = abs(v_in[0] / v_in[node]), abs(v_out[node] / v_out[0])
         tag = f"tree_map[{i}] {site[0]}@{site[1]}"
         m.check(tag + ".site_to_soma", tm["site_to_soma"][i], a_in)
@@ -503,12 +503,12 @@ def test_S6_reciprocity_in_reference(name):
     extra = [(branches[-1], 10), (branches[1], 5)]
     t = NodalTree(sc, sites=[_synapse_site(name)] + extra, dps=dps)
     pts = ["soma", _synapse_site(name)] + extra
-    for f in (0.0, 37.0, 2500.0):
+    for freq_hz in (0.0, 37.0, 2500.0):
         for i in range(len(pts)):
             for j in range(i + 1, len(pts)):
-                zij = t.voltages(f, t.node(pts[j]))[t.node(pts[i])]
-                zji = t.voltages(f, t.node(pts[i]))[t.node(pts[j])]
-                assert abs(zij - zji) <= mp.mpf("1e-25") * abs(zij), (f, pts[i], pts[j])
+                zij = t.voltages(freq_hz, t.node(pts[j]))[t.node(pts[i])]
+                zji = t.voltages(freq_hz, t.node(pts[i]))[t.node(pts[j])]
+                assert abs(zij - zji) <= mp.mpf("1e-25") * abs(zij), (freq_hz, pts[i], pts[j])
 
 
 @pytest.mark.parametrize("name", TREE_NAMES)
@@ -516,10 +516,10 @@ def test_reference_transfer_phase_two_routes(name):
     """Derived from S6: Z_t = Z_in,site * A(site->soma) = Z_in,soma * A(soma->site), so the
     unwrapped transfer phases arg Z_in,site + phi(site->soma) and arg Z_in,soma + phi(soma->site),
     obtained from two different solves and two path traversals, agree at every frequency."""
-    for f in (0.0, 1.0, 316.0, 10000.0):
-        ref = reference_response(name, f)
+    for freq_hz in (0.0, 1.0, 316.0, 10000.0):
+        ref = reference_response(name, freq_hz)
         other = mp.arg(ref["z_soma"]) + ref["phase_soma_to_site"]
-        assert abs(ref["phase_transfer"] - other) < 1e-20, (name, f)
+        assert abs(ref["phase_transfer"] - other) < 1e-20, (name, freq_hz)
         assert abs(ref["z_transfer"] - ref["z_transfer_reverse"]) < 1e-20 * abs(ref["z_transfer"])
 
 

@@ -10,8 +10,8 @@ import pytest
 import somaward
 
 
-def scenario(rm=20000.0, ri=150.0, cm=1.0, diameter=1.0, length=300.0, soma=20.0):
-    return {"membrane": {"Rm": rm, "Ri": ri, "Cm": cm},
+def scenario(rm_ohm_cm2=20000.0, ri_ohm_cm=150.0, cm_uF_cm2=1.0, diameter=1.0, length=300.0, soma=20.0):
+    return {"membrane": {"Rm": rm_ohm_cm2, "Ri": ri_ohm_cm, "Cm": cm_uF_cm2},
             "soma": None if soma is None else {"diameter": soma},
             "branches": [{"id": "d", "parent": None, "length": length, "diameter": diameter}],
             "synapse": {"branch": "d", "distance": length / 2}}
@@ -22,10 +22,10 @@ def test_plausible_cell_gives_no_warning():
 
 
 @pytest.mark.parametrize("kwargs,phrase", [
-    ({"rm": 150.0}, "whole-cell input resistance in MΩ"),     # 150 MΩ typed as Rm
-    ({"cm": 40.0}, "whole-cell capacitance in pF"),            # 40 pF typed as Cm
-    ({"rm": 300000.0}, "outside the usual 5 000–200 000"),
-    ({"ri": 20.0}, "outside the usual 70–300 Ω·cm"),
+    ({"rm_ohm_cm2": 150.0}, "whole-cell input resistance in MΩ"),     # 150 MΩ typed as Rm
+    ({"cm_uF_cm2": 40.0}, "whole-cell capacitance in pF"),            # 40 pF typed as Cm
+    ({"rm_ohm_cm2": 300000.0}, "outside the usual 5 000–200 000"),
+    ({"ri_ohm_cm": 20.0}, "outside the usual 70–300 Ω·cm"),
     ({"diameter": 0.1}, "outside the usual 0.3–10 µm"),
     ({"soma": 150.0}, "outside the usual 5–60 µm"),
     ({"length": 20000.0, "diameter": 0.5}, "space constants long"),
@@ -36,7 +36,7 @@ def test_odd_values_warn_not_reject(kwargs, phrase):
 
 
 def test_slip_is_named_once():
-    warnings = somaward.solve(scenario(rm=150.0))["warnings"]
+    warnings = somaward.solve(scenario(rm_ohm_cm2=150.0))["warnings"]
     assert sum("whole-cell input resistance" in w for w in warnings) == 1
 
 
@@ -53,9 +53,9 @@ def _bounds(message):
 
 
 @pytest.mark.parametrize("field,odd,make", [
-    ("membrane.Rm", 3000.0, lambda v: scenario(rm=v)),
-    ("membrane.Cm", 0.3, lambda v: scenario(cm=v)),
-    ("membrane.Ri", 20.0, lambda v: scenario(ri=v)),
+    ("membrane.Rm", 3000.0, lambda v: scenario(rm_ohm_cm2=v)),
+    ("membrane.Cm", 0.3, lambda v: scenario(cm_uF_cm2=v)),
+    ("membrane.Ri", 20.0, lambda v: scenario(ri_ohm_cm=v)),
     ("dendrite diameters", 0.1, lambda v: scenario(diameter=v, length=30.0)),
     ("soma.diameter", 150.0, lambda v: scenario(soma=v)),
 ])
@@ -83,11 +83,11 @@ def test_long_path_warning_fires_beyond_the_length_it_states():
     import math
     import re
 
-    rm, ri, d = 20000.0, 150.0, 0.5
-    lam_um = math.sqrt(rm * d * 1e-4 / (4 * ri)) * 1e4
+    rm_ohm_cm2, ri_ohm_cm, d = 20000.0, 150.0, 0.5
+    lam_um = math.sqrt(rm_ohm_cm2 * d * 1e-4 / (4 * ri_ohm_cm)) * 1e4
 
     def warned(L):
-        sc = scenario(rm=rm, ri=ri, diameter=d, length=L * lam_um)
+        sc = scenario(rm_ohm_cm2=rm_ohm_cm2, ri_ohm_cm=ri_ohm_cm, diameter=d, length=L * lam_um)
         return [w for w in somaward.solve(sc)["warnings"] if "space constants long" in w]
 
     first = warned(10.0)

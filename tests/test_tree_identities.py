@@ -17,34 +17,34 @@ from somaward import frequency
 from somaward.sites import point_terms, transfer_log
 from somaward.tree import build_tree, solve_tree
 
-RM, RI, CM = 20000.0, 150.0, 1.0            # invented membrane
-TAU_MS = RM * CM * 1e-3
+RM_OHM_CM2, RI_OHM_CM, CM_UF_CM2 = 20000.0, 150.0, 1.0            # invented membrane
+TAU_MS = RM_OHM_CM2 * CM_UF_CM2 * 1e-3
 TOL = 1e-9
-FREQS = [0.0] + [float(f) for f in np.logspace(-1, 4, 20)]     # 0 Hz and 20 log-spaced 0.1 Hz–10 kHz
+FREQS_HZ = [0.0] + [float(freq_hz) for freq_hz in np.logspace(-1, 4, 20)]     # 0 Hz and 20 log-spaced 0.1 Hz–10 kHz
 
 
 def lam_um(d_um):
     """λ = √(Rm·d/(4Ri)) (C2, Rall 1977), d in cm inside, µm out."""
-    return math.sqrt(RM * d_um * 1e-4 / (4 * RI)) * 1e4
+    return math.sqrt(RM_OHM_CM2 * d_um * 1e-4 / (4 * RI_OHM_CM)) * 1e4
 
 
 def r_inf_Mohm(d_um):
     """R∞ = (2/π)√(Rm·Ri)·d^(−3/2) (C4, Rall 1959), in MΩ."""
-    return 2 / math.pi * math.sqrt(RM * RI) * (d_um * 1e-4) ** -1.5 * 1e-6
+    return 2 / math.pi * math.sqrt(RM_OHM_CM2 * RI_OHM_CM) * (d_um * 1e-4) ** -1.5 * 1e-6
 
 
-def g_soma_uS(d_um, rm=RM):
+def g_soma_uS(d_um, rm_ohm_cm2=RM_OHM_CM2):
     """Sphere conductance πD²/Rm (C5), µS."""
-    return math.pi * (d_um * 1e-4) ** 2 / rm * 1e6
+    return math.pi * (d_um * 1e-4) ** 2 / rm_ohm_cm2 * 1e6
 
 
 def s_of_hz(freq_hz):
     return 2j * math.pi * freq_hz * 1e-3       # 1/ms
 
 
-def scenario(branches, synapse, soma=None, freqs=FREQS, **extra):
-    sc = {"membrane": {"Rm": RM, "Ri": RI, "Cm": CM}, "soma": soma, "branches": branches,
-          "synapse": synapse, "frequencies_hz": list(freqs), "map_spacing_um": 1000.0}
+def scenario(branches, synapse, soma=None, freqs_hz=FREQS_HZ, **extra):
+    sc = {"membrane": {"Rm": RM_OHM_CM2, "Ri": RI_OHM_CM, "Cm": CM_UF_CM2}, "soma": soma, "branches": branches,
+          "synapse": synapse, "frequencies_hz": list(freqs_hz), "map_spacing_um": 1000.0}
     sc.update(extra)
     return sc
 
@@ -101,8 +101,8 @@ def test_s5_equivalent_cylinder_rall_1962(soma, two_stems):
     # and the cylinder itself is the closed form of S9 (no soma: Y = tanh(kL)/R∞, Rall 1959)
     if soma is None:
         zc = z_complex(tree["frequency_response"]["soma_input_impedance_Mohm"])
-        for f, z in zip(FREQS, zc, strict=True):
-            k = mpmath.sqrt(1 + s_of_hz(f) * TAU_MS)
+        for freq_hz, z in zip(FREQS_HZ, zc, strict=True):
+            k = mpmath.sqrt(1 + s_of_hz(freq_hz) * TAU_MS)
             ref = r_inf_Mohm(d_eq) / (k * mpmath.tanh(k))
             assert abs(z / complex(ref) - 1) < TOL
 
@@ -133,10 +133,10 @@ def mixed_tree():
     ]
 
 
-def solved(soma, freqs=FREQS):
+def solved(soma, freqs_hz=FREQS_HZ):
     sc = somaward.validate(scenario(mixed_tree(), {"branch": "t2", "distance": 100.0}, soma))
     tree = build_tree(sc["branches"], sc["membrane"], sc["soma"])
-    s = np.array([s_of_hz(f) for f in freqs])
+    s = np.array([s_of_hz(freq_hz) for freq_hz in freqs_hz])
     return tree, solve_tree(tree, s)
 
 
@@ -201,7 +201,7 @@ def test_s7_thin_terminal_branch_site_to_soma_far_stronger():
 
 # ---------------------------------------------------------------------------------------- S9
 @pytest.mark.parametrize("end", ["sealed"])
-@pytest.mark.parametrize("soma_rm", [RM, 4000.0], ids=["uniform_Rm", "somatic_shunt"])
+@pytest.mark.parametrize("soma_rm", [RM_OHM_CM2, 4000.0], ids=["uniform_Rm", "somatic_shunt"])
 def test_s9_soma_plus_sealed_cylinder_rall_1959(end, soma_rm):
     """S9 — Y_in(s) = (πD²/Rm)(1+sτ) + √(1+sτ)·tanh(√(1+sτ)L)/R∞ (Rall 1959; Rall 1969); with a
     somatic shunt the soma term is πD²(1/Rm_soma + s·Cm) (derived: same sphere, own Rm).
@@ -212,18 +212,18 @@ def test_s9_soma_plus_sealed_cylinder_rall_1959(end, soma_rm):
                                 {"diameter": dsoma, "Rm": soma_rm}))
     area_cm2 = math.pi * (dsoma * 1e-4) ** 2
     fr = r["frequency_response"]["soma_input_impedance_Mohm"]
-    for f, mag, ph in zip(FREQS, fr["magnitude"], fr["phase_deg"], strict=True):
-        s = mpmath.mpc(s_of_hz(f))
+    for freq_hz, mag, ph in zip(FREQS_HZ, fr["magnitude"], fr["phase_deg"], strict=True):
+        s = mpmath.mpc(s_of_hz(freq_hz))
         k = mpmath.sqrt(1 + s * TAU_MS)
-        y_soma = area_cm2 * (1 / mpmath.mpf(soma_rm) + s * CM * 1e-3) * 1e6      # µS (µF·1/ms = 1e-3 S)
+        y_soma = area_cm2 * (1 / mpmath.mpf(soma_rm) + s * CM_UF_CM2 * 1e-3) * 1e6      # µS (µF·1/ms = 1e-3 S)
         y = y_soma + k * mpmath.tanh(k * big_l) / r_inf_Mohm(d)
-        assert mag == pytest.approx(float(abs(1 / y)), rel=TOL), f
-        assert ph == pytest.approx(float(mpmath.degrees(-mpmath.arg(y))), rel=TOL, abs=1e-10), f
+        assert mag == pytest.approx(float(abs(1 / y)), rel=TOL), freq_hz
+        assert ph == pytest.approx(float(mpmath.degrees(-mpmath.arg(y))), rel=TOL, abs=1e-10), freq_hz
     g_s = g_soma_uS(dsoma, soma_rm)
     assert r["rho_inf"] == pytest.approx(1 / r_inf_Mohm(d) / g_s, rel=TOL)
     assert r["rho"] == pytest.approx(math.tanh(big_l) / r_inf_Mohm(d) / g_s, rel=TOL)
-    if soma_rm == RM:      # the uniform-Rm form exactly as printed in S9: (πD²/Rm)(1 + sτ), numpy
-        k = np.sqrt(1 + np.array([s_of_hz(f) for f in FREQS]) * TAU_MS)
+    if soma_rm == RM_OHM_CM2:      # the uniform-Rm form exactly as printed in S9: (πD²/Rm)(1 + sτ), numpy
+        k = np.sqrt(1 + np.array([s_of_hz(freq_hz) for freq_hz in FREQS_HZ]) * TAU_MS)
         y = g_soma_uS(dsoma) * k**2 + k * np.tanh(k * big_l) / r_inf_Mohm(d)
         np.testing.assert_allclose(fr["magnitude"], np.abs(1 / y), rtol=TOL)
 
@@ -236,12 +236,12 @@ def test_site_to_soma_with_soma_independent_of_distal_end(end):
     d, big_l, dsoma, x = 1.5, 1.3, 15.0, 0.7
     r = somaward.solve(scenario([br("cyl", None, d, big_l, end=end)], {"branch": "cyl", "distance": x * lam_um(d)},
                                 {"diameter": dsoma}))
-    for f, mag in zip(FREQS, r["frequency_response"]["site_to_soma"]["magnitude"], strict=True):
-        s = mpmath.mpc(s_of_hz(f))
+    for freq_hz, mag in zip(FREQS_HZ, r["frequency_response"]["site_to_soma"]["magnitude"], strict=True):
+        s = mpmath.mpc(s_of_hz(freq_hz))
         k = mpmath.sqrt(1 + s * TAU_MS)
         ys = g_soma_uS(dsoma) * (1 + s * TAU_MS)
         ref = 1 / (mpmath.cosh(k * x) + r_inf_Mohm(d) * ys / k * mpmath.sinh(k * x))
-        assert mag == pytest.approx(float(abs(ref)), rel=TOL), f
+        assert mag == pytest.approx(float(abs(ref)), rel=TOL), freq_hz
 
 
 # ---------------------------------------------------------------------------------------- F2
@@ -270,15 +270,15 @@ def test_f2_monotonic_fall_with_frequency_sealed_cylinder(x_frac):
     soma→site ratio is 1/cosh(kL), the same function."""
     big_l = 1.6
     d = 1.0
-    freqs = [0.0] + [float(f) for f in np.logspace(-1, 4, 60)]
+    freqs_hz = [0.0] + [float(freq_hz) for freq_hz in np.logspace(-1, 4, 60)]
     r = somaward.solve(scenario([br("cyl", None, d, big_l)], {"branch": "cyl", "distance": x_frac * big_l * lam_um(d)},
-                                freqs=freqs))
+                                freqs_hz=freqs_hz))
     up = np.array(r["frequency_response"]["site_to_soma"]["magnitude"])
     assert np.all(np.diff(up) < 0)
     if x_frac == 1.0:
         down = np.array(r["frequency_response"]["soma_to_site"]["magnitude"])
         assert np.all(np.diff(down) < 0)
-    k = np.sqrt(1 + np.array([s_of_hz(f) for f in freqs]) * TAU_MS)
+    k = np.sqrt(1 + np.array([s_of_hz(freq_hz) for freq_hz in freqs_hz]) * TAU_MS)
     np.testing.assert_allclose(up, np.abs(1 / np.cosh(k * x_frac * big_l)), rtol=TOL)
 
 
@@ -335,7 +335,7 @@ def test_centroid_delay_is_derivative_and_phase_delay_limit(soma, syn_branch, y_
     compared with mpmath.diff (central difference, h = 1e-4/τ) of the engine's own ln A on the
     real s axis — a different route from the engine's complex step — rel 1e-6; and equal to
     the low-frequency limit of the phase delay −φ/ω (derived: φ = −ω·centroid + O(ω³))."""
-    sc = scenario(mixed_tree(), {"branch": syn_branch, "distance": y_um}, soma, freqs=[1e-4])
+    sc = scenario(mixed_tree(), {"branch": syn_branch, "distance": y_um}, soma, freqs_hz=[1e-4])
     r = somaward.solve(sc)
     for key, rep in (("up", "centroid_delay_ms"), ("down", "centroid_delay_soma_to_site_ms")):
         f = _site_response_fn(sc, syn_branch, y_um, key)
@@ -356,7 +356,7 @@ def test_centroid_delay_semi_infinite_cylinder(x):
     site→soma: A = 1/cosh(kX) (S3b), delay = (τ/2)·X·tanh X (derived)."""
     d = 1.0
     r = somaward.solve(scenario([br("cyl", None, d, 3.0, end="infinite")], {"branch": "cyl", "distance": x * lam_um(d)},
-                                freqs=[0.0]))
+                                freqs_hz=[0.0]))
     assert r["centroid_delay_soma_to_site_ms"] == pytest.approx(TAU_MS * x / 2, rel=1e-8)
     assert r["centroid_delay_ms"] == pytest.approx(TAU_MS * x * math.tanh(x) / 2, rel=1e-8)
     assert r["frequency_response"]["soma_to_site"]["phase_delay_ms"][0] == pytest.approx(TAU_MS * x / 2, rel=1e-8)
@@ -370,7 +370,7 @@ def test_centroid_delay_soma_plus_cylinder_closed_form(end):
     digits on the closed form (Agmon-Snir & Segev 1993 define the delay)."""
     d, big_l, dsoma, x = 1.2, 1.5, 16.0, 0.9
     r = somaward.solve(scenario([br("cyl", None, d, big_l, end=end)], {"branch": "cyl", "distance": x * lam_um(d)},
-                                {"diameter": dsoma}, freqs=[0.0]))
+                                {"diameter": dsoma}, freqs_hz=[0.0]))
 
     def ln_inv_a(s):
         k = mpmath.sqrt(1 + s * TAU_MS)
@@ -401,7 +401,7 @@ def _capacitive_end_delay(x, big_l, d, c_pF, g_nS):
 def _loaded_cylinder(g_nS, c_pF=5.0):
     d = 1.0
     return scenario([{"id": "a", "parent": None, "length": 300.0, "diameter": d, "end": {"G": g_nS, "C": c_pF}}],
-                    {"branch": "a", "distance": 100.0}, freqs=[0.0])
+                    {"branch": "a", "distance": 100.0}, freqs_hz=[0.0])
 
 
 @pytest.mark.parametrize("g_nS", [0.0, 1e-12, 0.5])

@@ -73,11 +73,11 @@ def cylinder_input_resistance_Mohm(r_inf_Mohm, electrotonic_length, end="sealed"
 
     sealed: R∞·coth(L); killed: R∞·tanh(L); infinite: R∞.
     """
-    L = float(electrotonic_length)
+    electrotonic_length = float(electrotonic_length)
     if end == "sealed":
-        return r_inf_Mohm / np.tanh(L)
+        return r_inf_Mohm / np.tanh(electrotonic_length)
     if end == "killed":
-        return r_inf_Mohm * np.tanh(L)
+        return r_inf_Mohm * np.tanh(electrotonic_length)
     if end == "infinite":
         return r_inf_Mohm
     raise ValueError(f"end: must be 'sealed', 'killed' or 'infinite', got {end!r}")

@@ -55,7 +55,7 @@ CONSTANTS_ORDER = ("lambda_um", "tau_m_ms", "input_resistance_infinite_Mohm", "e
                    "input_resistance_sealed_Mohm", "input_resistance_killed_Mohm")
 
 
-def cylinder_constants(diameter, Rm, Ri, Cm=1.0, length=None):
+def cylinder_constants(diameter_um, rm_ohm_cm2, ri_ohm_cm, cm_uF_cm2=1.0, length_um=None):
     """The numbers of ``somaward constants``: key of ``quantities.CYLINDER_CONSTANTS`` → value.
 
     λ, τm and R∞ of a uniform cylinder; with a length, its electrotonic length L and its input
@@ -63,15 +63,17 @@ def cylinder_constants(diameter, Rm, Ri, Cm=1.0, length=None):
     """
     from .cable import cylinder_input_resistance_Mohm
     from .membrane import input_resistance_infinite_Mohm, membrane_time_constant_ms, space_constant_um
-    lam = float(space_constant_um(diameter, Rm, Ri))
-    r_inf = float(input_resistance_infinite_Mohm(diameter, Rm, Ri))
-    out = {"lambda_um": lam, "tau_m_ms": float(membrane_time_constant_ms(Rm, Cm)),
-           "input_resistance_infinite_Mohm": r_inf}
-    if length is not None:
-        L = length / lam
-        out.update(electrotonic_length=L,
-                   input_resistance_sealed_Mohm=float(cylinder_input_resistance_Mohm(r_inf, L, "sealed")),
-                   input_resistance_killed_Mohm=float(cylinder_input_resistance_Mohm(r_inf, L, "killed")))
+    lambda_um = float(space_constant_um(diameter_um, rm_ohm_cm2, ri_ohm_cm))
+    r_inf_Mohm = float(input_resistance_infinite_Mohm(diameter_um, rm_ohm_cm2, ri_ohm_cm))
+    out = {"lambda_um": lambda_um, "tau_m_ms": float(membrane_time_constant_ms(rm_ohm_cm2, cm_uF_cm2)),
+           "input_resistance_infinite_Mohm": r_inf_Mohm}
+    if length_um is not None:
+        electrotonic_length = length_um / lambda_um
+        out.update(electrotonic_length=electrotonic_length,
+                   input_resistance_sealed_Mohm=float(
+                       cylinder_input_resistance_Mohm(r_inf_Mohm, electrotonic_length, "sealed")),
+                   input_resistance_killed_Mohm=float(
+                       cylinder_input_resistance_Mohm(r_inf_Mohm, electrotonic_length, "killed")))
     return out
 
 
@@ -82,11 +84,11 @@ _CONSTANTS_OPTIONS = {"membrane.Rm": "--Rm", "membrane.Ri": "--Ri", "membrane.Cm
 def _check_constants_inputs(args):
     """The options hold the scenario's fields, so the scenario schema's bounds apply to them."""
     from .scenario import validate
-    cylinder = {"id": "c", "parent": None, "diameter": args.diameter,
-                "length": args.length if args.length is not None else 1.0}
+    cylinder = {"id": "c", "parent": None, "diameter": args.diameter_um,
+                "length": args.length_um if args.length_um is not None else 1.0}
     try:
-        validate({"membrane": {"Rm": args.Rm, "Ri": args.Ri, "Cm": args.Cm}, "branches": [cylinder],
-                  "synapse": {"branch": "c", "distance": 0}})
+        membrane = {"Rm": args.rm_ohm_cm2, "Ri": args.ri_ohm_cm, "Cm": args.cm_uF_cm2}
+        validate({"membrane": membrane, "branches": [cylinder], "synapse": {"branch": "c", "distance": 0}})
     except ScenarioError as err:
         option = _CONSTANTS_OPTIONS.get(err.path)
         if option is None:
@@ -98,9 +100,10 @@ def _cmd_constants(args):
     from . import __version__
     from .quantities import CAUTIONS, CYLINDER_CONSTANTS, format_value, render_markup
     _check_constants_inputs(args)
-    values = cylinder_constants(args.diameter, args.Rm, args.Ri, args.Cm, args.length)
+    values = cylinder_constants(args.diameter_um, args.rm_ohm_cm2, args.ri_ohm_cm, args.cm_uF_cm2, args.length_um)
     if args.format == "json":
-        inputs = {"diameter": args.diameter, "Rm": args.Rm, "Ri": args.Ri, "Cm": args.Cm, "length": args.length}
+        inputs = {"diameter": args.diameter_um, "Rm": args.rm_ohm_cm2, "Ri": args.ri_ohm_cm, "Cm": args.cm_uF_cm2,
+                  "length": args.length_um}
         sys.stdout.write(json.dumps({"engine_version": __version__, "inputs": inputs, **values,
                                      "caution": list(CAUTIONS)}, indent=1, ensure_ascii=False) + "\n")
         return
@@ -124,7 +127,7 @@ def _cmd_schema(_args):
 def _input_fields():
     """Label and unit of each input field, from the scenario schema (plain text)."""
     from .quantities import input_fields
-    return {path: (f["label"], f["unit"]) for path, f in input_fields().items()}
+    return {path: (field["label"], field["unit"]) for path, field in input_fields().items()}
 
 
 def build_parser():
@@ -147,14 +150,17 @@ def build_parser():
     c = sub.add_parser("constants", help="λ, τm and R∞ of one cylinder (with --length: L and input resistances)",
                        description="Cable constants of one uniform cylinder (Rall 1959; Rall 1977).")
     fields = _input_fields()
-    for opt, path, kw in (("--Rm", "membrane.Rm", {"required": True}), ("--Ri", "membrane.Ri", {"required": True}),
-                          ("--Cm", "membrane.Cm", {"default": 1.0}),
-                          ("--diameter", "branches[].diameter", {"required": True}),
-                          ("--length", "branches[].length", {"default": None})):
+    # Options carry the scenario's symbols; the parsed values carry their units (args.rm_ohm_cm2 …).
+    for opt, dest, path, kw in (("--Rm", "rm_ohm_cm2", "membrane.Rm", {"required": True}),
+                                ("--Ri", "ri_ohm_cm", "membrane.Ri", {"required": True}),
+                                ("--Cm", "cm_uF_cm2", "membrane.Cm", {"default": 1.0}),
+                                ("--diameter", "diameter_um", "branches[].diameter", {"required": True}),
+                                ("--length", "length_um", "branches[].length", {"default": None})):
         label, unit = fields[path]
         extra = " (adds L and the input resistances with a sealed or killed far end)" if opt == "--length" else ""
         dflt = f"; {kw['default']:g} if not given" if kw.get("default") else ""
-        c.add_argument(opt, type=_positive_number, help=f"{label}, {unit}{dflt}{extra}", **kw)
+        c.add_argument(opt, dest=dest, metavar=opt[2:].upper(), type=_positive_number,
+                       help=f"{label}, {unit}{dflt}{extra}", **kw)
     c.add_argument("--format", choices=("text", "json"), default="text",
                    help="text (a table for reading) or json (keys with their units, for scripts)")
     c.set_defaults(run=_cmd_constants)

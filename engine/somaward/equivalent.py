@@ -154,7 +154,7 @@ def _terminal_geometry(tree):
     for b in np.flatnonzero(tree.terminal_branch):
         idx = branch_section_indices(tree, int(b))
         last = idx[-1]
-        x_end = float(tree.x_start[last] + tree.electrotonic_length[last])
+        x_end = float(tree.electrotonic_start[last] + tree.electrotonic_length[last])
         area = math.fsum(math.pi * tree.diameter_um[i] * tree.length_um[i] for i in idx)
         out.append((int(b), last, x_end, area))
     return out
@@ -195,8 +195,8 @@ def terminal_rows(tree, tolerance=DEFAULT_TOLERANCE):
     -------
     dict
         ``rows`` (per terminal: ``branch``, ``electrotonic_distance``, ``membrane_area_um2``,
-        ``departure`` = X/L − 1, ``x_ok``, ``end``, ``end_ok``, ``ok``), ``L`` (area-weighted mean, or the
-        largest X for infinite ends), ``x_min``, ``x_max``, ``end``, ``like_ends``,
+        ``departure`` = X/L − 1, ``x_ok``, ``end``, ``end_ok``, ``ok``), ``electrotonic_length`` L
+        (area-weighted mean, or the largest X for infinite ends), ``x_min``, ``x_max``, ``end``, ``like_ends``,
         ``equal_x_required``, ``load`` (normalised G, C of the cylinder's end or None).
     """
     geo = _terminal_geometry(tree)
@@ -204,7 +204,8 @@ def terminal_rows(tree, tolerance=DEFAULT_TOLERANCE):
     areas = [a for _, _, _, a in geo]
     common, like = _common_end(tree, geo)
     infinite = common == "infinite"
-    length = max(xs) if infinite else math.fsum(a * x for a, x in zip(areas, xs, strict=True)) / math.fsum(areas)
+    area_weighted_x = math.fsum(a * x for a, x in zip(areas, xs, strict=True)) / math.fsum(areas)
+    electrotonic_length = max(xs) if infinite else area_weighted_x
     end_ok = [_end_name(tree, sec) == common for _, sec, _, _ in geo]
     load = None
     if common == "load":
@@ -213,15 +214,15 @@ def terminal_rows(tree, tolerance=DEFAULT_TOLERANCE):
         g_ref, c_ref = (math.fsum(v[i] for i in sel) / len(sel) for v in (g, c))
         for i in sel:
             end_ok[i] = _ok(max(abs(_rel(g[i], g_ref)), abs(_rel(c[i], c_ref))), tolerance)
-        load = {"g_per_d32": g_ref, "c_per_d32": c_ref}
+        load = {"g_uS_per_d32": g_ref, "c_nF_per_d32": c_ref}
     rows = []
     for (b, sec, x, area), e_ok in zip(geo, end_ok, strict=True):
-        dep = x / length - 1.0 if length > 0 else 0.0
+        dep = x / electrotonic_length - 1.0 if electrotonic_length > 0 else 0.0
         x_ok = infinite or _ok(dep, tolerance)
         rows.append({"branch": tree.branch_ids[b], "electrotonic_distance": x, "membrane_area_um2": area,
                      "departure": dep, "x_ok": bool(x_ok), "end": _end_name(tree, sec),
                      "end_ok": bool(e_ok), "ok": bool(x_ok and e_ok)})
-    return {"rows": rows, "L": length, "x_min": min(xs), "x_max": max(xs), "end": common,
+    return {"rows": rows, "electrotonic_length": electrotonic_length, "x_min": min(xs), "x_max": max(xs), "end": common,
             "like_ends": bool(like and all(end_ok)), "equal_x_required": not infinite, "load": load}
 
 
@@ -239,7 +240,7 @@ def cylinder_scenario(tree, scenario, terminals):
     scenario : dict
         The validated scenario (``membrane``, ``soma``).
     terminals : dict
-        Output of :func:`terminal_rows` (``L``, ``end``, ``load``).
+        Output of :func:`terminal_rows` (``electrotonic_length``, ``end``, ``load``).
 
     Returns
     -------
@@ -251,18 +252,18 @@ def cylinder_scenario(tree, scenario, terminals):
 
     mem = scenario["membrane"]
     d_eq = equivalent_diameter_um(_stem_diameters_um(tree))
-    lam = float(space_constant_um(d_eq, mem["Rm"], mem["Ri"]))
+    lambda_um = float(space_constant_um(d_eq, mem["Rm"], mem["Ri"]))
     end = terminals["end"]
     if end == "load":
         w = d_eq ** 1.5
-        end = {"G": terminals["load"]["g_per_d32"] * w * 1e3, "C": terminals["load"]["c_per_d32"] * w * 1e3}
-    length_um = terminals["L"] * lam
+        end = {"G": terminals["load"]["g_uS_per_d32"] * w * 1e3, "C": terminals["load"]["c_nF_per_d32"] * w * 1e3}
+    length_um = terminals["electrotonic_length"] * lambda_um
     branch = {"id": "equivalent_cylinder", "parent": None, "length": length_um, "diameter": d_eq, "end": end}
     return {"branches": [branch], "membrane": mem, "soma": scenario.get("soma"), "diameter_um": d_eq,
-            "lambda_um": lam, "length_um": length_um, "electrotonic_length": terminals["L"]}
+            "lambda_um": lambda_um, "length_um": length_um, "electrotonic_length": terminals["electrotonic_length"]}
 
 
-def compare_logs(tree, cyl_tree, sec, y_um, s, sol=None):
+def compare_logs(tree, cyl_tree, sec, y_um, s_per_ms, sol=None):
     """Complex logs at one site of the full tree and at the same X on the cylinder.
 
     Parameters
@@ -271,8 +272,8 @@ def compare_logs(tree, cyl_tree, sec, y_um, s, sol=None):
         The full tree and the one-branch cylinder (from :func:`cylinder_scenario`).
     sec, y_um : int, float
         The site: section of ``tree`` and distance (µm) from its proximal end.
-    s : array_like
-        Laplace variables (1/ms).
+    s_per_ms : array_like
+        Laplace variables s (1/ms).
     sol : TreeSolution, optional
         ``solve_tree(tree, s)`` if the caller has it already.
 
@@ -283,20 +284,20 @@ def compare_logs(tree, cyl_tree, sec, y_um, s, sol=None):
         ``tree_ln_z_transfer``/``cyl_ln_z_transfer`` (ln MΩ); ``tree_up`` = ln A site→soma and
         ``tree_ln_z_site`` (full tree only: the cylinder does not give them).
     """
-    s = np.atleast_1d(np.asarray(s))
+    s = np.atleast_1d(np.asarray(s_per_ms))
     sol = solve_tree(tree, s) if sol is None else sol      # a solution of ``tree`` at these s
     t = point_terms(sol, [sec], [y_um])
-    ln_y_site = np.log(t["y_node"][0])
+    ln_y_site = np.log(t["y_node_uS"][0])
     out = {"tree_down": t["down"][0], "tree_up": t["up"][0], "tree_ln_z_site": -ln_y_site,
-           "tree_ln_z_soma": -np.log(sol.y_root), "tree_ln_z_transfer": t["up"][0] - ln_y_site}
-    x_site = float(tree.x_start[sec] + y_um / tree.lambda_um[sec])
+           "tree_ln_z_soma": -np.log(sol.y_root_uS), "tree_ln_z_transfer": t["up"][0] - ln_y_site}
+    x_site = float(tree.electrotonic_start[sec] + y_um / tree.lambda_um[sec])
     y_cyl = x_site * float(cyl_tree.lambda_um[0])
     if y_cyl > float(cyl_tree.length_um[0]) * (1 + _BEYOND):
-        return {**out, "cyl_down": None, "cyl_ln_z_soma": -np.log(solve_tree(cyl_tree, s).y_root),
+        return {**out, "cyl_down": None, "cyl_ln_z_soma": -np.log(solve_tree(cyl_tree, s).y_root_uS),
                 "cyl_ln_z_transfer": None}
     csol = solve_tree(cyl_tree, s)
     c = point_terms(csol, [0], [min(y_cyl, float(cyl_tree.length_um[0]))])
-    ln_z_soma = -np.log(csol.y_root)
+    ln_z_soma = -np.log(csol.y_root_uS)
     return {**out, "cyl_down": c["down"][0], "cyl_ln_z_soma": ln_z_soma,
             "cyl_ln_z_transfer": c["down"][0] + ln_z_soma}
 
@@ -327,7 +328,7 @@ NOT_GIVEN = ("A point on the equivalent cylinder stands for input spread over ev
 def _comparison(tree, cyl_tree, sec, y_um, sol_dc=None):
     logs = compare_logs(tree, cyl_tree, sec, y_um, [0.0], sol_dc)
     logs = {k: (v[0] if v is not None else None) for k, v in logs.items()}
-    x_site = float(tree.x_start[sec] + y_um / tree.lambda_um[sec])
+    x_site = float(tree.electrotonic_start[sec] + y_um / tree.lambda_um[sec])
     beyond = logs["cyl_down"] is None
     return {
         "electrotonic_distance": x_site,
@@ -377,7 +378,8 @@ def _messages(points, joins, terms, tolerance):
                 out.append(f"Terminal {r['branch']}: its end is {r['end']}, the others' {terms['end']}.")
         if not r["x_ok"]:
             out.append(f"Terminal {r['branch']}: X = {r['electrotonic_distance']:.4g}, a departure of "
-                       f"{_signed_pct(r['departure'])} from L = {terms['L']:.4g}, beyond the tolerance of {tol}.")
+                       f"{_signed_pct(r['departure'])} from L = {terms['electrotonic_length']:.4g}, beyond the "
+                       f"tolerance of {tol}.")
     return out
 
 
@@ -396,12 +398,12 @@ def cylinder_curve(cyl_tree, n_points=51):
     Returns ``{"electrotonic_distance": [...], "soma_to_site": [...]}`` (n_points each), the curve
     the page draws against the tree's own branches.
     """
-    length = float(cyl_tree.length_um[0])
-    y = np.linspace(0.0, length, n_points)
-    t = point_terms(solve_tree(cyl_tree, np.array([0.0])), np.zeros(n_points, dtype=np.intp), y)
+    length_um = float(cyl_tree.length_um[0])
+    y_um = np.linspace(0.0, length_um, n_points)
+    t = point_terms(solve_tree(cyl_tree, np.array([0.0])), np.zeros(n_points, dtype=np.intp), y_um)
     with np.errstate(divide="ignore", under="ignore"):
         a = np.exp(t["down"][:, 0])
-    return {"electrotonic_distance": [float(v) for v in y / float(cyl_tree.lambda_um[0])],
+    return {"electrotonic_distance": [float(v) for v in y_um / float(cyl_tree.lambda_um[0])],
             "soma_to_site": [float(v) for v in a]}
 
 
@@ -427,6 +429,7 @@ def equivalent_cylinder(tree, scenario, sec, y_um, sol_dc=None):
     cond = _conditions(points, joins, terms)
     deps = [abs(r["departure"]) for r in points + joins]
     spread = terms["x_max"] - terms["x_min"]
+    relative_spread = spread / terms["electrotonic_length"] if terms["electrotonic_length"] > 0 else 0.0
     return {
         "tolerance": tol,
         "meets_conditions": all(v for k, v in cond.items() if k != "equal_terminal_electrotonic_distance_required"),
@@ -440,7 +443,7 @@ def equivalent_cylinder(tree, scenario, sec, y_um, sol_dc=None):
         "terminal_electrotonic_distance_min": terms["x_min"],
         "terminal_electrotonic_distance_max": terms["x_max"],
         "terminal_electrotonic_distance_spread": spread,
-        "terminal_electrotonic_distance_relative_spread": spread / terms["L"] if terms["L"] > 0 else 0.0,
+        "terminal_electrotonic_distance_relative_spread": relative_spread,
         "end_condition": terms["end"] if terms["like_ends"] else "mixed",
         "cylinder": {"diameter_um": cyl["diameter_um"], "electrotonic_length": cyl["electrotonic_length"],
                      "electrotonic_length_min": terms["x_min"], "electrotonic_length_max": terms["x_max"],

@@ -273,7 +273,7 @@ def _and(items, limit=8):
 
 def _input_units():
     from .schema_check import schema_fields
-    return {path: f["unit"] for path, f in schema_fields().items()}
+    return {path: field["unit"] for path, field in schema_fields().items()}
 
 
 def _ends_sentences(scenario):
@@ -312,7 +312,7 @@ def methods_text(report):
     mem, soma = sc["membrane"], sc["soma"]
     units = _input_units()
     P = lambda markup: Q.render_markup(markup, "plain", rec)          # noqa: E731
-    Rm, Ri, Cm, tau = P("R_[m]"), P("R_[i]"), P("C_[m]"), P("τ_[m]")
+    rm_label, ri_label, cm_label, tau_label = P("R_[m]"), P("R_[i]"), P("C_[m]"), P("τ_[m]")
     u_rm, u_ri, u_cm = units["membrane.Rm"], units["membrane.Ri"], units["membrane.Cm"]
     um = units["branches[].length"]
     n_b = len(sc["branches"])
@@ -324,19 +324,21 @@ def methods_text(report):
         f"Attenuation between a dendritic synapse and {where} was estimated with a passive cable model "
         f"({stamp(report)}).",
         f"The dendritic tree comprised {_count(n_b, 'branch', 'branches')} made of {_count(n_c, 'uniform cylinder')}, "
-        f"with specific membrane resistance {Rm} = {mem['Rm']:g} {u_rm}, axial resistivity {Ri} = {mem['Ri']:g} {u_ri} "
-        f"and specific membrane capacitance {Cm} = {mem['Cm']:g} {u_cm}, uniform over the tree, so that the membrane "
-        f"time constant {tau} = {Rm}·{Cm} = {fmt(report['tau_m_ms'], 'tau_m_ms')} {Q.unit('tau_m_ms')}.",
+        f"with specific membrane resistance {rm_label} = {mem['Rm']:g} {u_rm}, "
+        f"axial resistivity {ri_label} = {mem['Ri']:g} {u_ri} "
+        f"and specific membrane capacitance {cm_label} = {mem['Cm']:g} {u_cm}, uniform over the tree, so that the "
+        f"membrane time constant {tau_label} = {rm_label}·{cm_label} = {fmt(report['tau_m_ms'], 'tau_m_ms')} "
+        f"{Q.unit('tau_m_ms')}.",
     ]
     if soma:
         s = report["soma"]
-        rm_words = (f"a specific membrane resistance equal to the dendritic {Rm}" if soma["Rm"] == mem["Rm"] else
+        rm_words = (f"a specific membrane resistance equal to the dendritic {rm_label}" if soma["Rm"] == mem["Rm"] else
                     f"its own specific membrane resistance of {soma['Rm']:g} {units['soma.Rm']}")
         text.append(
             f"The recording site was an isopotential spherical soma of diameter {soma['diameter']:g} "
             f"{units['soma.diameter']} (membrane area πD² = {fmt(s['area_um2'], 'soma.area_um2')} "
             f"{Q.unit('soma.area_um2')}), with {rm_words} and a specific membrane capacitance equal to the dendritic "
-            f"{Cm} ({mem['Cm']:g} {u_cm}), so that the soma's own membrane had a resistance of "
+            f"{cm_label} ({mem['Cm']:g} {u_cm}), so that the soma's own membrane had a resistance of "
             f"{fmt(s['resistance_Mohm'], 'soma.resistance_Mohm')} {Q.unit('soma.resistance_Mohm')} and a capacitance "
             f"of {fmt(s['capacitance_pF'], 'soma.capacitance_pF')} {Q.unit('soma.capacitance_pF')}.")
     else:
@@ -344,10 +346,10 @@ def methods_text(report):
                     "branches meet, and every quantity named for the root refers to that node.")
     text.append(_ends_sentences(sc))
     text.append(
-        f"Each cylinder obeys the cable equation λ²∂²V/∂x² − {tau}∂V/∂t − V = 0, with space constant "
-        f"λ = √({Rm}·d/(4{Ri})) for a cylinder of diameter d (Hodgkin & Rushton 1946; Rall 1977); it was solved "
-        "exactly in the Laplace domain and the cylinders were combined through the tree by the recursion of input "
-        "admittances (Rall 1959), with no spatial discretisation.")
+        f"Each cylinder obeys the cable equation λ²∂²V/∂x² − {tau_label}∂V/∂t − V = 0, with space constant "
+        f"λ = √({rm_label}·d/(4{ri_label})) for a cylinder of diameter d (Hodgkin & Rushton 1946; Rall 1977); it was "
+        "solved exactly in the Laplace domain and the cylinders were combined through the tree by the recursion of "
+        "input admittances (Rall 1959), with no spatial discretisation.")
     n_cyl_syn = len(report["cylinders"].get(site["branch"], [None]))
     in_cyl = f", in its cylinder {site['cylinder']} (counted from its proximal end)" if n_cyl_syn > 1 else ""
     x_sym, _, x_what = Q.definition("site.electrotonic_distance", rec).partition(": ")
@@ -376,11 +378,11 @@ def methods_text(report):
     text.append(_is(f"The {_lower_first(Q.label('centroid_delay_ms', rec))}",
                     Q.definition("centroid_delay_ms", rec)) + ".")
 
-    f_hz = sc["frequencies_hz"]
+    freqs_hz = sc["frequencies_hz"]
     hz = units["frequencies_hz"]
-    span = f"{f_hz[0]:g} {hz}" if len(f_hz) == 1 else f"from {min(f_hz):g} to {max(f_hz):g} {hz}"
+    span = f"{freqs_hz[0]:g} {hz}" if len(freqs_hz) == 1 else f"from {min(freqs_hz):g} to {max(freqs_hz):g} {hz}"
     text.append(
-        f"Frequency responses were evaluated at {_count(len(f_hz), 'frequency', 'frequencies')}, {span}; the "
+        f"Frequency responses were evaluated at {_count(len(freqs_hz), 'frequency', 'frequencies')}, {span}; the "
         f"whole-tree map used points at most {sc['map_spacing_um']:g} {units['map_spacing_um']} apart, at "
         f"{sc['map_frequency_hz']:g} {units['map_frequency_hz']}.")
     text.append(methods_sentence(report))

@@ -19,7 +19,7 @@ import numpy as np
 from .sites import point_terms
 from .tree import path_to, solve_tree
 
-__all__ = ["laplace_of_hz", "site_response", "centroid_delays_ms", "complex_step_ms", "CHUNK_VALUES"]
+__all__ = ["laplace_of_hz", "site_response", "centroid_delays_ms", "complex_step_per_ms", "CHUNK_VALUES"]
 
 CHUNK_VALUES = 400_000       # sections × frequencies held in memory at once
 
@@ -29,8 +29,8 @@ def laplace_of_hz(freq_hz):
     return 2j * math.pi * np.asarray(freq_hz, dtype=float) * 1e-3
 
 
-def site_response(tree, sec, y_um, s):
-    """Complex logs at one site for Laplace variables ``s`` (1/ms), processed in chunks.
+def site_response(tree, sec, y_um, s_per_ms):
+    """Complex logs at one site for Laplace variables ``s_per_ms`` (1/ms), processed in chunks.
 
     Returns
     -------
@@ -38,19 +38,19 @@ def site_response(tree, sec, y_um, s):
         ``up`` = ln A_site→soma, ``down`` = ln A_soma→site, ``ln_z_site`` = ln Z_in at the site,
         ``ln_z_root`` = ln Z_in at the recording site (MΩ).
     """
-    s = np.atleast_1d(np.asarray(s, dtype=complex))
+    s = np.atleast_1d(np.asarray(s_per_ms, dtype=complex))
     chunk = max(1, CHUNK_VALUES // max(tree.n_sections, 1))
     path = path_to(tree, sec)
     parts = []
     for lo in range(0, len(s), chunk):
         sol = solve_tree(tree, s[lo:lo + chunk], path=path)
         t = point_terms(sol, [sec], [y_um])
-        parts.append((t["up"][0], t["down"][0], -np.log(t["y_node"][0]), -np.log(sol.y_root)))
+        parts.append((t["up"][0], t["down"][0], -np.log(t["y_node_uS"][0]), -np.log(sol.y_root_uS)))
     keys = ("up", "down", "ln_z_site", "ln_z_root")
     return {k: np.concatenate([p[j] for p in parts]) for j, k in enumerate(keys)}
 
 
-def complex_step_ms(tree):
+def complex_step_per_ms(tree):
     """The step h (1/ms) of the complex-step derivative at s = 0: h·τ = 1e-10 for the slowest τ."""
     return 1e-10 / max(tree.tau_ms, _slowest_load_ms(tree), 1e-6)
 
@@ -58,10 +58,10 @@ def complex_step_ms(tree):
 def centroid_delays_ms(tree, sec, y_um, response=None):
     """Centroid transfer delays (ms): site→soma and soma→site, by the complex step at s = 0.
 
-    ``response``: a :func:`site_response` at s = i·h, h from :func:`complex_step_ms`, if the
+    ``response``: a :func:`site_response` at s = i·h, h from :func:`complex_step_per_ms`, if the
     caller computed it with other frequencies.
     """
-    h = complex_step_ms(tree)
+    h = complex_step_per_ms(tree)
     r = site_response(tree, sec, y_um, [1j * h]) if response is None else response
     return float(-r["up"][0].imag / h), float(-r["down"][0].imag / h)
 

@@ -30,8 +30,8 @@ def map_points(tree, spacing_um):
     """
     n = _pieces(tree.length_um, spacing_um)
     first = np.zeros(tree.n_sections, dtype=bool)
-    for f, _ in tree.branch_sections:
-        first[f] = True
+    for first_section, _ in tree.branch_sections:
+        first[first_section] = True
     counts = n + first
     sec = np.repeat(np.arange(tree.n_sections), counts)
     start_j = np.repeat(np.where(first, 0, 1), counts)
@@ -52,11 +52,11 @@ def path_points(tree, sec, y_um, spacing_um):
     """Points from the recording site to (sec, y) along the path, ≤ spacing apart."""
     chain = path_to(tree, sec)
     out_sec, out_y = [chain[0]], [0.0]
-    for s in chain:
-        end = float(y_um) if s == int(sec) else float(tree.length_um[s])
-        if end <= 0.0:
+    for i in chain:
+        end_um = float(y_um) if i == int(sec) else float(tree.length_um[i])
+        if end_um <= 0.0:
             continue
-        n = max(1, math.ceil(end / spacing_um - 1e-9))
-        out_sec.extend([s] * n)
-        out_y.extend(end * j / n for j in range(1, n + 1))
+        n = max(1, math.ceil(end_um / spacing_um - 1e-9))
+        out_sec.extend([i] * n)
+        out_y.extend(end_um * j / n for j in range(1, n + 1))
     return np.array(out_sec, dtype=np.intp), np.array(out_y)

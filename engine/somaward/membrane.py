@@ -117,11 +117,11 @@ def ac_space_constant_um(diameter_um, rm_ohm_cm2, ri_ohm_cm, cm_uF_cm2, freq_hz)
     Derived from the cable equation with V ∝ e^{iωt}; discussed in Koch 1999, Biophysics of
     Computation ch. 2, and Zador, Agmon-Snir & Segev 1995, J Neurosci 15:1669.
     """
-    lam = space_constant_um(diameter_um, rm_ohm_cm2, ri_ohm_cm)
-    wt = 2.0 * math.pi * np.asarray(freq_hz, dtype=float) * 1.0e-3 * membrane_time_constant_ms(
+    lambda_um = space_constant_um(diameter_um, rm_ohm_cm2, ri_ohm_cm)
+    omega_tau = 2.0 * math.pi * np.asarray(freq_hz, dtype=float) * 1.0e-3 * membrane_time_constant_ms(
         rm_ohm_cm2, cm_uF_cm2
     )
-    return lam * np.sqrt(2.0 / (1.0 + np.sqrt(1.0 + wt**2)))
+    return lambda_um * np.sqrt(2.0 / (1.0 + np.sqrt(1.0 + omega_tau**2)))
 
 
 def sphere_input_resistance_Mohm(diameter_um, rm_ohm_cm2):

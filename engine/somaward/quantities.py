@@ -611,10 +611,10 @@ def input_fields(recording_site="soma"):
         ``{label, label_html, unit, description}``.
     """
     from .schema_check import schema_fields
-    return {path: {"label": render_markup(f["label"], "plain", recording_site),
-                   "label_html": render_markup(f["label"], "html", recording_site),
-                   "unit": f["unit"], "description": f["description"]}
-            for path, f in schema_fields().items()}
+    return {path: {"label": render_markup(field["label"], "plain", recording_site),
+                   "label_html": render_markup(field["label"], "html", recording_site),
+                   "unit": field["unit"], "description": field["description"]}
+            for path, field in schema_fields().items()}
 
 
 def input_label(path):

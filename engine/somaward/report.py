@@ -15,7 +15,7 @@ import numpy as np
 from ._version import __version__
 from .equivalent import equivalent_cylinder
 from .errors import InternalError
-from .frequency import centroid_delays_ms, complex_step_ms, laplace_of_hz, site_response
+from .frequency import centroid_delays_ms, complex_step_per_ms, laplace_of_hz, site_response
 from .export import fingerprint
 from .maps import map_points, path_points, tree_map_logs
 from .quantities import CAUTIONS
@@ -60,12 +60,12 @@ def _listed(values):
     return [_num(v) for v in values]
 
 
-def _direction(log_a, freq_hz, centroid_ms):
+def _direction(log_a, freqs_hz, centroid_ms):
     """Magnitude, log attenuation, unwrapped phase and phase delay of one direction."""
-    omega = 2.0 * math.pi * np.asarray(freq_hz) * 1e-3          # rad/ms
+    omega_rad_ms = 2.0 * math.pi * np.asarray(freqs_hz) * 1e-3
     phase = np.imag(log_a)
     with np.errstate(divide="ignore", invalid="ignore"):
-        delay = np.where(omega > 0, -phase / np.where(omega > 0, omega, 1.0), centroid_ms)
+        delay = np.where(omega_rad_ms > 0, -phase / np.where(omega_rad_ms > 0, omega_rad_ms, 1.0), centroid_ms)
     return {"magnitude": _magnitudes(log_a), "log_attenuation": _listed(-np.real(log_a)),
             "phase_deg": _listed(np.degrees(phase)), "phase_delay_ms": _listed(delay)}
 
@@ -75,7 +75,7 @@ def _impedance(ln_z):
 
 
 def _branch_tables(tree):
-    lam, elec, secs, term_x = {}, {}, {}, {}
+    lambda_um, elec, secs, term_x = {}, {}, {}, {}
     for b in range(len(tree.branch_ids)):
         idx = branch_section_indices(tree, b)
         bid = tree.branch_ids[b]
@@ -83,12 +83,12 @@ def _branch_tables(tree):
                  "lambda_um": float(tree.lambda_um[i]),
                  "electrotonic_length": float(tree.electrotonic_length[i])} for i in idx]
         secs[bid] = rows
-        lam[bid] = rows[0]["lambda_um"] if len(rows) == 1 else [r["lambda_um"] for r in rows]
+        lambda_um[bid] = rows[0]["lambda_um"] if len(rows) == 1 else [r["lambda_um"] for r in rows]
         elec[bid] = math.fsum(r["electrotonic_length"] for r in rows)
         if tree.terminal_branch[b]:
             i = idx[-1]
-            term_x[bid] = float(tree.x_start[i] + tree.electrotonic_length[i])
-    return lam, elec, secs, term_x
+            term_x[bid] = float(tree.electrotonic_start[i] + tree.electrotonic_length[i])
+    return lambda_um, elec, secs, term_x
 
 
 def _site_section(tree, branch_index, distance_um):
@@ -105,22 +105,22 @@ def _soma_block(tree, scenario):
     soma = scenario["soma"]
     if soma is None:
         return None
-    area = math.pi * soma["diameter"] ** 2
-    return {"diameter_um": float(soma["diameter"]), "area_um2": area, "Rm_ohm_cm2": float(soma["Rm"]),
+    area_um2 = math.pi * soma["diameter"] ** 2
+    return {"diameter_um": float(soma["diameter"]), "area_um2": area_um2, "Rm_ohm_cm2": float(soma["Rm"]),
             "resistance_Mohm": 1.0 / tree.soma_g_uS, "capacitance_pF": tree.soma_c_nF * 1e3,
             "tau_ms": tree.soma_c_nF / tree.soma_g_uS}
 
 
-def _steady_state(tree, sec, y, warnings):
+def _steady_state(tree, sec, y_um, warnings):
     sol = solve_tree(tree, np.array([0.0]))
-    t = point_terms(sol, [sec], [y])
-    up, down, y_node = float(t["up"][0, 0]), float(t["down"][0, 0]), float(t["y_node"][0, 0])
+    t = point_terms(sol, [sec], [y_um])
+    up, down, y_node = float(t["up"][0, 0]), float(t["down"][0, 0]), float(t["y_node_uS"][0, 0])
     ss = {}
     ss.update(_ratio_block("site_to_soma", up, warnings, "steady-state site→soma attenuation"))
     ss.update(_ratio_block("soma_to_site", down, warnings, "steady-state soma→site attenuation"))
-    g_dend = float(sol.yload[-1, 0])
+    g_dend = float(sol.yload_uS[-1, 0])
     values = {
-        "soma_input_resistance_Mohm": 1.0 / float(sol.y_root[0]),
+        "soma_input_resistance_Mohm": 1.0 / float(sol.y_root_uS[0]),
         "site_input_resistance_Mohm": 1.0 / y_node,
         "transfer_resistance_Mohm": _num(math.exp(up) / y_node) if up > _LOG_UNDERFLOW else 0.0,
         "rho": g_dend / tree.soma_g_uS if tree.has_soma else None,
@@ -129,20 +129,20 @@ def _steady_state(tree, sec, y, warnings):
     return sol, ss, values
 
 
-def _frequency(tree, sec, y, freqs, warnings):
+def _frequency(tree, sec, y_um, freqs_hz, warnings):
     """Frequency response at the site, and the centroid delays from one extra complex step."""
-    s = np.concatenate([laplace_of_hz(freqs), [1j * complex_step_ms(tree)]])
-    both = site_response(tree, sec, y, s)
-    centroid = centroid_delays_ms(tree, sec, y, {k: v[-1:] for k, v in both.items()})
+    s_per_ms = np.concatenate([laplace_of_hz(freqs_hz), [1j * complex_step_per_ms(tree)]])
+    both = site_response(tree, sec, y_um, s_per_ms)
+    centroid = centroid_delays_ms(tree, sec, y_um, {k: v[-1:] for k, v in both.items()})
     r = {k: v[:-1] for k, v in both.items()}
-    out = {"frequencies_hz": [float(f) for f in freqs],
-           "site_to_soma": _direction(r["up"], freqs, centroid[0]),
-           "soma_to_site": _direction(r["down"], freqs, centroid[1]),
+    out = {"frequencies_hz": [float(freq_hz) for freq_hz in freqs_hz],
+           "site_to_soma": _direction(r["up"], freqs_hz, centroid[0]),
+           "soma_to_site": _direction(r["down"], freqs_hz, centroid[1]),
            "transfer_impedance_Mohm": _impedance(r["up"] + r["ln_z_site"]),
            "site_input_impedance_Mohm": _impedance(r["ln_z_site"]),
            "soma_input_impedance_Mohm": _impedance(r["ln_z_root"])}
     for key in ("site_to_soma", "soma_to_site"):
-        zero = [f for f, m in zip(freqs, out[key]["magnitude"], strict=True) if m == 0.0]
+        zero = [freq_hz for freq_hz, m in zip(freqs_hz, out[key]["magnitude"], strict=True) if m == 0.0]
         if zero:
             warnings.append(f"frequency response {key.replace('_', ' ')}: |A| underflows double precision at "
                             f"{len(zero)} frequencies from {min(zero):g} Hz and is reported as 0 there; "
@@ -151,26 +151,26 @@ def _frequency(tree, sec, y, freqs, warnings):
 
 
 def _tree_map(tree, scenario, sol_dc):
-    sec, y = map_points(tree, scenario["map_spacing_um"])
-    f = scenario["map_frequency_hz"]
-    sol = sol_dc if f == 0 else solve_tree(tree, laplace_of_hz([f]))
-    up, down = tree_map_logs(sol, sec, y)
-    x = tree.x_start[sec] + y / tree.lambda_um[sec]
-    return {"frequency_hz": float(f),
+    sec, y_um = map_points(tree, scenario["map_spacing_um"])
+    freq_hz = scenario["map_frequency_hz"]
+    sol = sol_dc if freq_hz == 0 else solve_tree(tree, laplace_of_hz([freq_hz]))
+    up, down = tree_map_logs(sol, sec, y_um)
+    x = tree.electrotonic_start[sec] + y_um / tree.lambda_um[sec]
+    return {"frequency_hz": float(freq_hz),
             "branch": [tree.branch_ids[b] for b in tree.branch_of[sec]],
-            "distance_um": [float(v) for v in tree.start_um[sec] + y],
-            "path_distance_um": [float(v) for v in tree.path_start_um[sec] + y],
+            "distance_um": [float(v) for v in tree.start_um[sec] + y_um],
+            "path_distance_um": [float(v) for v in tree.path_start_um[sec] + y_um],
             "electrotonic_distance": [float(v) for v in x],
             "site_to_soma": _magnitudes(up), "soma_to_site": _magnitudes(down),
             "site_to_soma_log": _listed(-np.real(up)), "soma_to_site_log": _listed(-np.real(down))}
 
 
-def _path_profile(tree, sol_dc, sec, y, spacing):
-    psec, py = path_points(tree, sec, y, spacing)
-    t = point_terms(sol_dc, psec, py)
-    u_site = point_terms(sol_dc, [sec], [y])["up"][0, 0]
-    return {"path_distance_um": [float(v) for v in tree.path_start_um[psec] + py],
-            "electrotonic_distance": [float(v) for v in tree.x_start[psec] + py / tree.lambda_um[psec]],
+def _path_profile(tree, sol_dc, sec, y_um, spacing_um):
+    psec, py_um = path_points(tree, sec, y_um, spacing_um)
+    t = point_terms(sol_dc, psec, py_um)
+    u_site = point_terms(sol_dc, [sec], [y_um])["up"][0, 0]
+    return {"path_distance_um": [float(v) for v in tree.path_start_um[psec] + py_um],
+            "electrotonic_distance": [float(v) for v in tree.electrotonic_start[psec] + py_um / tree.lambda_um[psec]],
             "branch": [tree.branch_ids[b] for b in tree.branch_of[psec]],
             "input_at_site": _magnitudes(u_site - t["up"][:, 0]),
             "input_at_soma": _magnitudes(t["down"][:, 0])}
@@ -201,23 +201,23 @@ def solve(scenario):
     warnings += membrane_warnings(sc["membrane"], sc["soma"]) + geometry_warnings(sc["branches"], sc["soma"])
     tree = build_tree(sc["branches"], sc["membrane"], sc["soma"])
     index = {b["id"]: i for i, b in enumerate(sc["branches"])}
-    b, dist = locate_synapse(sc["synapse"], sc["branches"], index)
-    sec, y, cylinder = _site_section(tree, b, dist)
-    sol_dc, steady, values = _steady_state(tree, sec, y, warnings)
-    frequency, centroid = _frequency(tree, sec, y, sc["frequencies_hz"], warnings)
-    lam, elec, secs, term_x = _branch_tables(tree)
+    b, distance_um = locate_synapse(sc["synapse"], sc["branches"], index)
+    sec, y_um, cylinder = _site_section(tree, b, distance_um)
+    sol_dc, steady, values = _steady_state(tree, sec, y_um, warnings)
+    frequency, centroid = _frequency(tree, sec, y_um, sc["frequencies_hz"], warnings)
+    lambda_um, elec, secs, term_x = _branch_tables(tree)
     warnings += electrotonic_warnings(term_x)
-    x_site = float(tree.x_start[sec] + y / tree.lambda_um[sec])
+    x_site = float(tree.electrotonic_start[sec] + y_um / tree.lambda_um[sec])
     report = {
         "engine_version": __version__,
         "recording_site": "soma" if tree.has_soma else "root",
         "tau_m_ms": float(tree.tau_ms),
-        "lambda_um": lam, "electrotonic_length": elec, "cylinders": secs,
+        "lambda_um": lambda_um, "electrotonic_length": elec, "cylinders": secs,
         "terminal_electrotonic_distance": term_x,
         **values,
         "electrotonic_distance": x_site,
-        "site": {"branch": tree.branch_ids[b], "distance_um": float(dist),
-                 "path_distance_um": float(tree.path_start_um[sec] + y), "electrotonic_distance": x_site,
+        "site": {"branch": tree.branch_ids[b], "distance_um": float(distance_um),
+                 "path_distance_um": float(tree.path_start_um[sec] + y_um), "electrotonic_distance": x_site,
                  "cylinder": cylinder, "lambda_um": float(tree.lambda_um[sec]),
                  "branch_electrotonic_length": elec[tree.branch_ids[b]]},
         "soma": _soma_block(tree, sc),
@@ -225,9 +225,9 @@ def solve(scenario):
         "frequency_response": frequency,
         "centroid_delay_ms": _num(centroid[0]),
         "centroid_delay_soma_to_site_ms": _num(centroid[1]),
-        "path_profile": _path_profile(tree, sol_dc, sec, y, sc["map_spacing_um"]),
+        "path_profile": _path_profile(tree, sol_dc, sec, y_um, sc["map_spacing_um"]),
         "tree_map": _tree_map(tree, sc, sol_dc),
-        "equivalent_cylinder": equivalent_cylinder(tree, sc, sec, y, sol_dc),
+        "equivalent_cylinder": equivalent_cylinder(tree, sc, sec, y_um, sol_dc),
     }
     report["warnings"] = warnings
     report["caution"] = list(CAUTIONS)

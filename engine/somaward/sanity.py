@@ -39,21 +39,21 @@ def _outside(x, bounds):
 
 
 def membrane_warnings(membrane, soma):
-    rm, ri, cm = membrane["Rm"], membrane["Ri"], membrane["Cm"]
+    rm_ohm_cm2, ri_ohm_cm, cm_uF_cm2 = membrane["Rm"], membrane["Ri"], membrane["Cm"]
     out = []
-    if rm < RM_SLIP:
-        out.append(f"membrane.Rm = {rm:g} Ω·cm² is far below the usual {_span(RM_USUAL)} Ω·cm²: a whole-cell "
+    if rm_ohm_cm2 < RM_SLIP:
+        out.append(f"membrane.Rm = {rm_ohm_cm2:g} Ω·cm² is far below the usual {_span(RM_USUAL)} Ω·cm²: a whole-cell "
                    "input resistance in MΩ may have been entered as the specific membrane resistance.")
-    elif _outside(rm, RM_USUAL):
-        out.append(f"membrane.Rm = {rm:g} Ω·cm² is outside the usual {_span(RM_USUAL)} Ω·cm².")
-    if cm > CM_SLIP:
-        out.append(f"membrane.Cm = {cm:g} µF/cm² is far above the usual {_span(CM_USUAL)} µF/cm²: a whole-cell "
+    elif _outside(rm_ohm_cm2, RM_USUAL):
+        out.append(f"membrane.Rm = {rm_ohm_cm2:g} Ω·cm² is outside the usual {_span(RM_USUAL)} Ω·cm².")
+    if cm_uF_cm2 > CM_SLIP:
+        out.append(f"membrane.Cm = {cm_uF_cm2:g} µF/cm² is far above the usual {_span(CM_USUAL)} µF/cm²: a whole-cell "
                    "capacitance in pF may have been entered as the specific membrane capacitance.")
-    elif _outside(cm, CM_USUAL):
-        out.append(f"membrane.Cm = {cm:g} µF/cm² is outside the usual {_span(CM_USUAL)} µF/cm².")
-    if _outside(ri, RI_USUAL):
-        out.append(f"membrane.Ri = {ri:g} Ω·cm is outside the usual {_span(RI_USUAL)} Ω·cm.")
-    if soma is not None and soma["Rm"] < RM_SLIP and soma["Rm"] != rm:
+    elif _outside(cm_uF_cm2, CM_USUAL):
+        out.append(f"membrane.Cm = {cm_uF_cm2:g} µF/cm² is outside the usual {_span(CM_USUAL)} µF/cm².")
+    if _outside(ri_ohm_cm, RI_USUAL):
+        out.append(f"membrane.Ri = {ri_ohm_cm:g} Ω·cm is outside the usual {_span(RI_USUAL)} Ω·cm.")
+    if soma is not None and soma["Rm"] < RM_SLIP and soma["Rm"] != rm_ohm_cm2:
         out.append(f"soma.Rm = {soma['Rm']:g} Ω·cm² is far below the usual {_span(RM_USUAL)} Ω·cm²: a whole-cell "
                    "input resistance in MΩ may have been entered as the specific membrane resistance.")
     return out
@@ -83,9 +83,9 @@ def electrotonic_warnings(terminal_x):
     if not terminal_x:
         return []
     longest = max(terminal_x, key=terminal_x.get)
-    x = terminal_x[longest]
-    if x > ELECTROTONIC_LENGTH_WARN:
-        return [f"the path to {longest!r} is {x:.3g} space constants long, more than "
+    x_end = terminal_x[longest]
+    if x_end > ELECTROTONIC_LENGTH_WARN:
+        return [f"the path to {longest!r} is {x_end:.3g} space constants long, more than "
                 f"{_n(ELECTROTONIC_LENGTH_WARN)} (twice the upper end of the usual whole-neuron electrotonic "
                 f"length, {_span(ELECTROTONIC_LENGTH_USUAL)}): check Rm, Ri and the diameters."]
     return []

@@ -21,8 +21,8 @@ def default_frequencies_hz():
     """0 Hz and 10 log-spaced values per decade from 0.1 Hz to 10 kHz, to 3 significant digits."""
     values = [0.0]
     for j in range(-10, 41):
-        f = 10.0 ** (j / 10.0)
-        values.append(float(f"{f:.3g}"))
+        freq_hz = 10.0 ** (j / 10.0)
+        values.append(float(f"{freq_hz:.3g}"))
     return values
 
 
@@ -161,11 +161,11 @@ def _check_synapse(syn, branches, index, children):
         if syn["branch"] not in index:
             raise ScenarioError("synapse.branch", f"no branch has id {describe(syn['branch'], 80)}"
                                 + did_you_mean(syn["branch"], index))
-        i, dist, field = index[syn["branch"]], syn["distance"], "synapse.distance"
-        length = branch_length_um(branches[i])
-        if dist > length * (1 + _REL_TOL):
-            raise ScenarioError(field, f"must be ≤ {length:g} µm (the length of branch "
-                                f"{describe(syn['branch'], 80)}), got {describe(dist)}")
+        i, distance_um, field = index[syn["branch"]], syn["distance"], "synapse.distance"
+        length_um = branch_length_um(branches[i])
+        if distance_um > length_um * (1 + _REL_TOL):
+            raise ScenarioError(field, f"must be ≤ {length_um:g} µm (the length of branch "
+                                f"{describe(syn['branch'], 80)}), got {describe(distance_um)}")
     else:
         if syn["path"] not in index:
             raise ScenarioError("synapse.path", f"no branch has id {describe(syn['path'], 80)}"
@@ -174,9 +174,9 @@ def _check_synapse(syn, branches, index, children):
         if children[i]:
             raise ScenarioError("synapse.path", f"must name a terminal branch; {describe(syn['path'], 80)} has "
                                 "child branches")
-        i, dist, field = _on_path(syn, branches, index)
-        length = branch_length_um(branches[i])
-    at_end = not children[i] and dist >= length * (1 - _REL_TOL)
+        i, distance_um, field = _on_path(syn, branches, index)
+        length_um = branch_length_um(branches[i])
+    at_end = not children[i] and distance_um >= length_um * (1 - _REL_TOL)
     if at_end and branches[i].get("end") == "killed":
         raise ScenarioError(field, f"the synapse would sit on the killed end of {branches[i]['id']!r}, where V is "
                             "held at 0; place it inside the branch")
@@ -197,12 +197,12 @@ def _path_to(branches, index, terminal):
 
 def _on_path(syn, branches, index):
     chain = _path_to(branches, index, syn["path"])
-    total = math.fsum(branch_length_um(branches[i]) for i in chain)
-    if syn["path_distance"] > total * (1 + _REL_TOL):
-        raise ScenarioError("synapse.path_distance", f"must be ≤ {total:g} µm (the path length from the soma "
-                            f"to the end of {describe(syn['path'], 80)}), got {describe(syn['path_distance'])}")
-    i, dist = locate_synapse(syn, branches, index)
-    return i, dist, "synapse.path_distance"
+    path_length_um = math.fsum(branch_length_um(branches[i]) for i in chain)
+    if syn["path_distance"] > path_length_um * (1 + _REL_TOL):
+        raise ScenarioError("synapse.path_distance", f"must be ≤ {path_length_um:g} µm (the path length from the "
+                            f"soma to the end of {describe(syn['path'], 80)}), got {describe(syn['path_distance'])}")
+    i, distance_um = locate_synapse(syn, branches, index)
+    return i, distance_um, "synapse.path_distance"
 
 
 def locate_synapse(syn, branches, index):

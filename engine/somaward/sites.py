@@ -34,18 +34,18 @@ def point_terms(sol, sec, y_um):
     -------
     dict of (P, F) arrays
         ``down`` = ln(V_P/V_root) for current at the root; ``up`` = ln(V_root/V_P) for current
-        at P; ``y_node`` = total admittance at P (µS; inf at a killed end).
+        at P; ``y_node_uS`` = total admittance at P (µS; inf at a killed end).
     """
     t = sol.tree
     sec = np.atleast_1d(np.asarray(sec, dtype=np.intp))
     y_um = np.clip(np.atleast_1d(np.asarray(y_um, dtype=float)), 0.0, t.length_um[sec])   # rounding of j·ℓ/n
     lam = t.lambda_um[sec]
-    ky = (y_um / lam)[:, None] * sol.k[None, :]
-    kr = ((t.length_um[sec] - y_um) / lam)[:, None] * sol.k[None, :]
+    ky = (y_um / lam)[:, None] * sol.propagation[None, :]
+    kr = ((t.length_um[sec] - y_um) / lam)[:, None] * sol.propagation[None, :]
     mr, my = np.expm1(-2.0 * kr), np.expm1(-2.0 * ky)
-    y0, m = sol.y0[sec], sol.m[sec]
-    gam, opg, omg = sol.gam[sec], sol.opg[sec], sol.omg[sec]
-    gup, opu, omu = sol.gup[sec], sol.opu[sec], sol.omu[sec]
+    y0, m = sol.y0_uS[sec], sol.round_trip_m1[sec]
+    gam, opg, omg = sol.gamma_distal[sec], sol.one_plus_gamma_distal[sec], sol.one_minus_gamma_distal[sec]
+    gup, opu, omu = sol.gamma_proximal[sec], sol.one_plus_gamma_proximal[sec], sol.one_minus_gamma_proximal[sec]
     down = _parent_rows(sol, sec, sol.down_log) + cable.log_voltage_ratio(ky, gam, opg, mr, m)
     zero = np.zeros_like(my)
     up = _parent_rows(sol, sec, sol.up_log) + cable.log_voltage_ratio(ky, gup, opu, zero, my)
@@ -53,7 +53,7 @@ def point_terms(sol, sec, y_um):
         y_down = cable.through_admittance(y0, gam, omg, opg, mr)
     y_up = cable.through_admittance(y0, gup, omu, opu, my)
     y_node = np.where(np.isfinite(y_down), y_down, np.inf) + y_up
-    return {"down": down, "up": up, "y_node": y_node}
+    return {"down": down, "up": up, "y_node_uS": y_node}
 
 
 def transfer_log(sol, a, b):
@@ -67,7 +67,7 @@ def transfer_log(sol, a, b):
     t = sol.tree
     (sa, ya), (sb, yb) = a, b
     terms = point_terms(sol, [sa, sb], [ya, yb])
-    up, down, y_node = terms["up"], terms["down"], terms["y_node"]
+    up, down, y_node = terms["up"], terms["down"], terms["y_node_uS"]
     anc_a, anc_b = path_to(t, sa)[::-1], path_to(t, sb)
     common = next((s for s in anc_a if s in set(anc_b)), None)
     base = -np.log(y_node[0])

@@ -54,7 +54,7 @@ class Tree:
     electrotonic_length: np.ndarray
     start_um: np.ndarray           # distance of the section's proximal end from its branch's start
     path_start_um: np.ndarray      # path distance of the proximal end from the recording site
-    x_start: np.ndarray            # electrotonic distance of the proximal end
+    electrotonic_start: np.ndarray  # electrotonic distance X of the proximal end from the recording site
     end_code: np.ndarray           # END_CODES, terminal sections only
     end_g_uS: np.ndarray
     end_c_nF: np.ndarray
@@ -138,7 +138,8 @@ def build_tree(branches, membrane, soma=None):
     soma : dict or None
         ``diameter`` (µm) and optional own ``Rm`` (Ω·cm²) of an isopotential spherical soma.
     """
-    rm, ri, cm = float(membrane["Rm"]), float(membrane["Ri"]), float(membrane["Cm"])
+    rm_ohm_cm2, ri_ohm_cm = float(membrane["Rm"]), float(membrane["Ri"])
+    cm_uF_cm2 = float(membrane["Cm"])
     rows, first_last, bparent, children = _section_rows(branches)
     cols = list(zip(*rows, strict=True))
     depth = np.array(cols[0], dtype=np.intp)
@@ -148,20 +149,21 @@ def build_tree(branches, membrane, soma=None):
     parent_old = np.array(cols[8], dtype=np.intp)[perm]
     parent = np.where(parent_old >= 0, new_of_old[np.maximum(parent_old, 0)], -1)
     col = lambda k, dt=float: np.array(cols[k], dtype=dt)[perm]  # noqa: E731
-    length, diam = col(2), col(3)
-    lam = space_constant_um(diam, rm, ri)
-    elec = length / lam
-    reach_um, reach_x = _ancestor_sums(parent, slice(None), length, elec)
-    soma_g, soma_c = _soma_terms(soma, rm, cm)
+    length_um, diameter_um = col(2), col(3)
+    lambda_um = space_constant_um(diameter_um, rm_ohm_cm2, ri_ohm_cm)
+    electrotonic_length = length_um / lambda_um
+    reach_um, reach_x = _ancestor_sums(parent, slice(None), length_um, electrotonic_length)
+    soma_g_uS, soma_c_nF = _soma_terms(soma, rm_ohm_cm2, cm_uF_cm2)
     return Tree(
         branch_ids=tuple(b["id"] for b in branches),
-        branch_of=col(1, np.intp), parent=parent, length_um=length, diameter_um=diam,
-        lambda_um=lam, g_inf_uS=1.0 / input_resistance_infinite_Mohm(diam, rm, ri),
-        electrotonic_length=elec, start_um=col(4), path_start_um=reach_um - length, x_start=reach_x - elec,
+        branch_of=col(1, np.intp), parent=parent, length_um=length_um, diameter_um=diameter_um,
+        lambda_um=lambda_um, g_inf_uS=1.0 / input_resistance_infinite_Mohm(diameter_um, rm_ohm_cm2, ri_ohm_cm),
+        electrotonic_length=electrotonic_length, start_um=col(4), path_start_um=reach_um - length_um,
+        electrotonic_start=reach_x - electrotonic_length,
         end_code=col(5, np.intp), end_g_uS=col(6), end_c_nF=col(7), levels=_levels(depth[perm]),
-        branch_sections=tuple((int(new_of_old[f]), int(new_of_old[la])) for f, la in first_last),
+        branch_sections=tuple((int(new_of_old[first]), int(new_of_old[last])) for first, last in first_last),
         terminal_branch=np.array([not ch for ch in children]), branch_parent=bparent,
-        tau_ms=membrane_time_constant_ms(rm, cm), soma_g_uS=soma_g, soma_c_nF=soma_c,
+        tau_ms=membrane_time_constant_ms(rm_ohm_cm2, cm_uF_cm2), soma_g_uS=soma_g_uS, soma_c_nF=soma_c_nF,
         has_soma=soma is not None,
     )
 
@@ -172,66 +174,98 @@ def _levels(depth_sorted):
     return tuple((int(a), int(b)) for a, b in zip(bounds[:-1], bounds[1:], strict=True))
 
 
-def _soma_terms(soma, rm, cm):
+def _soma_terms(soma, rm_ohm_cm2, cm_uF_cm2):
     """Conductance (µS) and capacitance (nF) of a spherical soma of area πD²."""
     if soma is None:
         return 0.0, 0.0
     area_cm2 = np.pi * (float(soma["diameter"]) * 1e-4) ** 2
-    rm_soma = float(soma.get("Rm", rm))
-    return area_cm2 / rm_soma * 1e6, cm * area_cm2 * 1e3
+    soma_rm_ohm_cm2 = float(soma.get("Rm", rm_ohm_cm2))
+    return area_cm2 / soma_rm_ohm_cm2 * 1e6, cm_uF_cm2 * area_cm2 * 1e3
 
 
 @dataclass(frozen=True)
 class TreeSolution:
-    """Per-section terms of one tree at the Laplace variables ``s`` (shape (F,), 1/ms).
+    """Per-section terms of one tree at the Laplace variables ``s_per_ms`` (shape (F,)).
 
-    Arrays are (N, F). ``gam/opg`` are Γ and 1+Γ of each section's distal load; ``gup/opu/omu``
-    are Γ', 1+Γ', 1−Γ' of the load Yup at its proximal end. ``m`` = expm1(−2κ).
+    Arrays over sections and Laplace variables are (N, F); notation of :mod:`somaward.cable`.
+
+    Attributes
+    ----------
+    tree : Tree
+        The tree solved.
+    s_per_ms : ndarray, (F,)
+        Laplace variables s (1/ms); s = iω for a frequency response, 0 for the steady state.
+    propagation : ndarray, (F,)
+        k = √(1 + sτm), the complex propagation factor per space constant (dimensionless).
+    y0_uS : ndarray, (N, F)
+        Characteristic admittance Y0 = k/R∞ of each section (µS).
+    round_trip_m1 : ndarray, (N, F)
+        e^{−2kL} − 1 of each section (by expm1; dimensionless): there and back along the section.
+    gamma_distal, one_plus_gamma_distal, one_minus_gamma_distal : ndarray, (N, F)
+        Γ, 1 + Γ and 1 − Γ of each section's distal load (dimensionless).
+    yin_uS : ndarray, (N, F)
+        Input admittance of each section with its subtree, seen at its proximal end (µS).
+    yload_uS : ndarray, (N + 1, F)
+        Distal load admittance of each section (µS); row N is the dendrites' load at the
+        recording site.
+    gamma_proximal, one_plus_gamma_proximal, one_minus_gamma_proximal : ndarray, (N, F)
+        Γ', 1 + Γ', 1 − Γ' of the load Yup at each section's proximal end: everything but the
+        section's own subtree (dimensionless).
+    down_log : ndarray, (N, F)
+        D = ln(V_distal/V_root) at each section's distal node for current injected at the root
+        (real part in nepers, imaginary part the phase in rad).
+    up_log : ndarray, (N, F)
+        U = ln(V_root/V_distal) for current injected at each section's distal node (same units).
+    y_root_uS : ndarray, (F,)
+        Total admittance at the recording site (µS).
+    y_soma_uS : ndarray, (F,)
+        The soma's own admittance G + sC (µS; 0 without a soma).
     """
 
     tree: Tree
-    s: np.ndarray
-    k: np.ndarray
-    y0: np.ndarray
-    m: np.ndarray
-    gam: np.ndarray
-    opg: np.ndarray
-    omg: np.ndarray
-    yin: np.ndarray
-    yload: np.ndarray
-    gup: np.ndarray
-    opu: np.ndarray
-    omu: np.ndarray
-    down_log: np.ndarray      # D at each section's distal node
-    up_log: np.ndarray        # U at each section's distal node
-    y_root: np.ndarray        # (F,) total admittance at the recording site
-    y_soma: np.ndarray        # (F,) the soma's own admittance (0 without a soma)
+    s_per_ms: np.ndarray
+    propagation: np.ndarray
+    y0_uS: np.ndarray
+    round_trip_m1: np.ndarray
+    gamma_distal: np.ndarray
+    one_plus_gamma_distal: np.ndarray
+    one_minus_gamma_distal: np.ndarray
+    yin_uS: np.ndarray
+    yload_uS: np.ndarray
+    gamma_proximal: np.ndarray
+    one_plus_gamma_proximal: np.ndarray
+    one_minus_gamma_proximal: np.ndarray
+    down_log: np.ndarray
+    up_log: np.ndarray
+    y_root_uS: np.ndarray
+    y_soma_uS: np.ndarray
 
 
-def solve_tree(tree, s, path=None):
-    """Run the up and down passes of ``tree`` at Laplace variables ``s`` (1/ms).
+def solve_tree(tree, s_per_ms, path=None):
+    """Run the up and down passes of ``tree`` at Laplace variables ``s_per_ms`` (1/ms).
 
-    ``s`` real (e.g. ``[0.0]``) gives real arithmetic; complex ``s = iω`` the frequency response.
-    ``path``: section indices from the recording site outwards (e.g. to a synapse); when given,
-    the down pass runs along them only, and only points on that path may be evaluated.
+    ``s_per_ms`` real (e.g. ``[0.0]``) gives real arithmetic; complex ``s = iω`` the frequency
+    response. ``path``: section indices from the recording site outwards (e.g. to a synapse);
+    when given, the down pass runs along them only, and only points on that path may be evaluated.
     """
-    s = np.atleast_1d(np.asarray(s))
+    s = np.atleast_1d(np.asarray(s_per_ms))
     k = np.sqrt(1.0 + s * tree.tau_ms)
     y0 = tree.g_inf_uS[:, None] * k[None, :]
     kappa = tree.electrotonic_length[:, None] * k[None, :]
     m = np.expm1(-2.0 * kappa)
     up = _up_pass(tree, s, y0, m)
     y_soma = (tree.soma_g_uS + s * tree.soma_c_nF) * np.ones_like(k)
-    y_root = y_soma + up["yload"][-1]
+    y_root = y_soma + up["yload_uS"][-1]
     levels = tree.levels if path is None else tuple((int(i), int(i) + 1) for i in path)
     down = _down_pass(tree, levels, y0, kappa, m, up, y_root)
-    return TreeSolution(tree=tree, s=s, k=k, y0=y0, m=m, y_root=y_root, y_soma=y_soma, **up, **down)
+    return TreeSolution(tree=tree, s_per_ms=s, propagation=k, y0_uS=y0, round_trip_m1=m, y_root_uS=y_root,
+                        y_soma_uS=y_soma, **up, **down)
 
 
 def _terminal_loads(tree, s, y0):
     """Initial distal loads as (num, den): 0 sealed, killed (1, 0), y0 infinite, G + sC lumped."""
-    n, f = y0.shape
-    num = np.zeros((n + 1, f), dtype=y0.dtype)
+    n, n_s = y0.shape
+    num = np.zeros((n + 1, n_s), dtype=y0.dtype)
     den = np.ones((n, 1))
     code = tree.end_code
     killed, inf, load = code == END_CODES["killed"], code == END_CODES["infinite"], code == END_CODES["load"]
@@ -256,7 +290,8 @@ def _up_pass(tree, s, y0, m):
         gm = g * m[lo:hi]
         np.multiply(y0[lo:hi], (q - gm) / (p + gm), out=yin[lo:hi])
         np.add.at(num, parent_row[lo:hi], yin[lo:hi])
-    return {"gam": gam, "opg": opg, "omg": omg, "yin": yin, "yload": num}
+    return {"gamma_distal": gam, "one_plus_gamma_distal": opg, "one_minus_gamma_distal": omg, "yin_uS": yin,
+            "yload_uS": num}
 
 
 def branch_section_indices(tree, b):
@@ -279,7 +314,7 @@ def path_to(tree, sec):
 
 def _down_pass(tree, levels, y0, kappa, m, up, y_root):
     """Yup recursion level by level, then the ln-ratio sums D and U along the ancestors."""
-    gam, opg, yin, yload = up["gam"], up["opg"], up["yin"], up["yload"]
+    gam, opg, yin, yload = up["gamma_distal"], up["one_plus_gamma_distal"], up["yin_uS"], up["yload_uS"]
     gup, opu, omu = (np.empty_like(y0) for _ in range(3))
     node_y = np.empty_like(y0)        # total admittance at each section's distal node
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
@@ -302,7 +337,8 @@ def _down_pass(tree, levels, y0, kappa, m, up, y_root):
     own_u = cable.log_voltage_ratio(kappa[sel], gup[sel], opu[sel], zero, m[sel])
     down_log, up_log = np.empty_like(y0), np.empty_like(y0)
     down_log[sel], up_log[sel] = _ancestor_sums(tree.parent, sel, own_d, own_u)
-    return {"gup": gup, "opu": opu, "omu": omu, "down_log": down_log, "up_log": up_log}
+    return {"gamma_proximal": gup, "one_plus_gamma_proximal": opu, "one_minus_gamma_proximal": omu,
+            "down_log": down_log, "up_log": up_log}
 
 
 def _ancestor_sums(parent, sel, *own):

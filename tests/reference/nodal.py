@@ -53,13 +53,13 @@ DEFAULT_DPS = 30
 _MATCH_UM = 1e-9  # two positions on a branch closer than this (um) are the same node
 
 
-def membrane_constants(Rm, Ri, Cm, diameter_um):
+def membrane_constants(rm_ohm_cm2, ri_ohm_cm, cm_uF_cm2, diameter_um):
     """lambda (um), ri (MOhm/um), tau (ms) and R_inf (MOhm) of a cylinder (Rall 1959; 1977)."""
-    Rm, Ri, Cm, d = (mp.mpf(v) for v in (Rm, Ri, Cm, diameter_um))
-    lam = 100 * mp.sqrt(Rm * d / (4 * Ri))
-    ri = mp.mpf("0.01") * 4 * Ri / (mp.pi * d**2)
-    tau = Rm * Cm / 1000
-    return {"lambda_um": lam, "ri_Mohm_per_um": ri, "tau_ms": tau, "r_inf_Mohm": lam * ri}
+    rm_ohm_cm2, ri_ohm_cm, cm_uF_cm2, d = (mp.mpf(v) for v in (rm_ohm_cm2, ri_ohm_cm, cm_uF_cm2, diameter_um))
+    lam = 100 * mp.sqrt(rm_ohm_cm2 * d / (4 * ri_ohm_cm))
+    ri_Mohm_per_um = mp.mpf("0.01") * 4 * ri_ohm_cm / (mp.pi * d**2)
+    tau = rm_ohm_cm2 * cm_uF_cm2 / 1000
+    return {"lambda_um": lam, "ri_Mohm_per_um": ri_Mohm_per_um, "tau_ms": tau, "r_inf_Mohm": lam * ri_Mohm_per_um}
 
 
 def _sections_of(branch):
@@ -95,17 +95,17 @@ class NodalTree:
         self.dps = dps
         with mp.workdps(dps):
             mem = scenario["membrane"]
-            self.Rm, self.Ri, self.Cm = (mp.mpf(mem[k]) for k in ("Rm", "Ri", "Cm"))
-            self.tau_ms = self.Rm * self.Cm / 1000
+            self.rm_ohm_cm2, self.ri_ohm_cm, self.cm_uF_cm2 = (mp.mpf(mem[k]) for k in ("Rm", "Ri", "Cm"))
+            self.tau_ms = self.rm_ohm_cm2 * self.cm_uF_cm2 / 1000
             soma = scenario.get("soma")
             self.has_soma = soma is not None
             if self.has_soma:
                 D = mp.mpf(soma["diameter"])
-                rms = mp.mpf(soma.get("Rm", mem["Rm"]))
+                soma_rm_ohm_cm2 = mp.mpf(soma.get("Rm", mem["Rm"]))
                 self.soma_diameter = D
-                self.soma_Rm = rms
-                self.G_soma_uS = mp.mpf("0.01") * mp.pi * D**2 / rms
-                self.C_soma_nF = mp.mpf("1e-5") * self.Cm * mp.pi * D**2
+                self.soma_rm_ohm_cm2 = soma_rm_ohm_cm2
+                self.G_soma_uS = mp.mpf("0.01") * mp.pi * D**2 / soma_rm_ohm_cm2
+                self.C_soma_nF = mp.mpf("1e-5") * self.cm_uF_cm2 * mp.pi * D**2
             self.branches = {b["id"]: b for b in scenario["branches"]}
             self._build(scenario["branches"], list(sites))
         self._cache = {}
@@ -224,10 +224,10 @@ class NodalTree:
 
     # ------------------------------------------------------------------ physics
     def _lam(self, d):
-        return 100 * mp.sqrt(self.Rm * d / (4 * self.Ri))
+        return 100 * mp.sqrt(self.rm_ohm_cm2 * d / (4 * self.ri_ohm_cm))
 
     def _ri(self, d):
-        return mp.mpf("0.01") * 4 * self.Ri / (mp.pi * d**2)
+        return mp.mpf("0.01") * 4 * self.ri_ohm_cm / (mp.pi * d**2)
 
     def r_inf_Mohm(self, d):
         with mp.workdps(self.dps):
@@ -247,12 +247,12 @@ class NodalTree:
         n = self.n_nodes
         Y = mp.matrix(n, n)
         for e in self.edges:
-            ri = self._ri(e.diameter)
+            ri_Mohm_per_um = self._ri(e.diameter)
             z = self._q(s, e.diameter) * e.length
-            y11 = self._q(s, e.diameter) * mp.coth(z) / ri
+            y11 = self._q(s, e.diameter) * mp.coth(z) / ri_Mohm_per_um
             Y[e.a, e.a] += y11
             if e.b is not None:
-                y12 = -self._q(s, e.diameter) / (ri * mp.sinh(z))
+                y12 = -self._q(s, e.diameter) / (ri_Mohm_per_um * mp.sinh(z))
                 Y[e.b, e.b] += y11
                 Y[e.a, e.b] += y12
                 Y[e.b, e.a] += y12
