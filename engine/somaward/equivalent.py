@@ -65,7 +65,8 @@ import numpy as np
 
 from .quantities import label as _label, render_markup as _render, unit as _unit
 from .sites import point_terms
-from .tree import END_CODES, branch_section_indices, build_tree, solve_tree
+from .topology import children, electrotonic_distance, roots, sections_of_branch
+from .tree import END_CODES, build_tree, solve_tree
 
 __all__ = ["DEFAULT_TOLERANCE", "rule_ratio", "equivalent_diameter_um", "branch_point_rows",
            "cylinder_join_rows", "terminal_rows", "cylinder_scenario", "cylinder_curve", "compare_logs",
@@ -92,14 +93,6 @@ def equivalent_diameter_um(stem_diameters_um):
     return math.fsum(float(d) ** 1.5 for d in stem_diameters_um) ** (2.0 / 3.0)
 
 
-def _children(tree):
-    kids = [[] for _ in tree.branch_ids]
-    for b, p in enumerate(tree.branch_parent):
-        if p >= 0:
-            kids[int(p)].append(b)
-    return kids
-
-
 def _ok(departure, tolerance):
     return bool(abs(departure) <= tolerance * (1 + 1e-12))
 
@@ -115,7 +108,7 @@ def branch_point_rows(tree, tolerance=DEFAULT_TOLERANCE):
         ``departure`` = ratio − 1 (signed), ``ok`` (|departure| ≤ tolerance).
     """
     rows = []
-    for b, kids in enumerate(_children(tree)):
+    for b, kids in enumerate(children(tree.branch_parent)):
         if not kids:
             continue
         d_p = float(tree.diameter_um[tree.branch_sections[b][1]])
@@ -139,7 +132,7 @@ def cylinder_join_rows(tree, tolerance=DEFAULT_TOLERANCE):
     """
     rows = []
     for b, bid in enumerate(tree.branch_ids):
-        idx = branch_section_indices(tree, b)
+        idx = sections_of_branch(tree, b)
         for j in range(1, len(idx)):
             d0, d1 = float(tree.diameter_um[idx[j - 1]]), float(tree.diameter_um[idx[j]])
             ratio = rule_ratio(d0, [d1])
@@ -152,9 +145,9 @@ def _terminal_geometry(tree):
     """(branch index, distal section, terminal X, membrane area µm²) of each terminal branch."""
     out = []
     for b in np.flatnonzero(tree.terminal_branch):
-        idx = branch_section_indices(tree, int(b))
+        idx = sections_of_branch(tree, int(b))
         last = idx[-1]
-        x_end = float(tree.electrotonic_start[last] + tree.electrotonic_length[last])
+        x_end = float(electrotonic_distance(tree, last))
         area = math.fsum(math.pi * tree.diameter_um[i] * tree.length_um[i] for i in idx)
         out.append((int(b), last, x_end, area))
     return out
@@ -227,8 +220,7 @@ def terminal_rows(tree, tolerance=DEFAULT_TOLERANCE):
 
 
 def _stem_diameters_um(tree):
-    return [float(tree.diameter_um[tree.branch_sections[b][0]])
-            for b in range(len(tree.branch_ids)) if tree.branch_parent[b] < 0]
+    return [float(tree.diameter_um[tree.branch_sections[b][0]]) for b in roots(tree.branch_parent)]
 
 
 def cylinder_scenario(tree, scenario, terminals):
@@ -290,7 +282,7 @@ def compare_logs(tree, cyl_tree, sec, y_um, s_per_ms, sol=None):
     ln_y_site = np.log(t["y_node_uS"][0])
     out = {"tree_down": t["down"][0], "tree_up": t["up"][0], "tree_ln_z_site": -ln_y_site,
            "tree_ln_z_soma": -np.log(sol.y_root_uS), "tree_ln_z_transfer": t["up"][0] - ln_y_site}
-    x_site = float(tree.electrotonic_start[sec] + y_um / tree.lambda_um[sec])
+    x_site = float(electrotonic_distance(tree, sec, y_um))
     y_cyl = x_site * float(cyl_tree.lambda_um[0])
     if y_cyl > float(cyl_tree.length_um[0]) * (1 + _BEYOND):
         return {**out, "cyl_down": None, "cyl_ln_z_soma": -np.log(solve_tree(cyl_tree, s).y_root_uS),
@@ -328,7 +320,7 @@ NOT_GIVEN = ("A point on the equivalent cylinder stands for input spread over ev
 def _comparison(tree, cyl_tree, sec, y_um, sol_dc=None):
     logs = compare_logs(tree, cyl_tree, sec, y_um, [0.0], sol_dc)
     logs = {k: (v[0] if v is not None else None) for k, v in logs.items()}
-    x_site = float(tree.electrotonic_start[sec] + y_um / tree.lambda_um[sec])
+    x_site = float(electrotonic_distance(tree, sec, y_um))
     beyond = logs["cyl_down"] is None
     return {
         "electrotonic_distance": x_site,
@@ -449,7 +441,7 @@ def equivalent_cylinder(tree, scenario, sec, y_um, sol_dc=None):
                      "electrotonic_length_min": terms["x_min"], "electrotonic_length_max": terms["x_max"],
                      "lambda_um": cyl["lambda_um"], "length_um": cyl["length_um"],
                      "end": cyl["branches"][0]["end"],
-                     "stems": [tree.branch_ids[b] for b in range(len(tree.branch_ids)) if tree.branch_parent[b] < 0],
+                     "stems": [tree.branch_ids[b] for b in roots(tree.branch_parent)],
                      "length_rule": LENGTH_RULE, "taper_rule": TAPER_RULE,
                      "curve": cylinder_curve(cyl_tree)},
         "comparison": _comparison(tree, cyl_tree, sec, y_um, sol_dc),

@@ -17,7 +17,8 @@ import math
 import numpy as np
 
 from .sites import point_terms
-from .tree import path_to, solve_tree
+from .topology import section_path
+from .tree import solve_tree
 
 __all__ = ["laplace_of_hz", "site_response", "centroid_delays_ms", "complex_step_per_ms", "CHUNK_VALUES"]
 
@@ -40,7 +41,7 @@ def site_response(tree, sec, y_um, s_per_ms):
     """
     s = np.atleast_1d(np.asarray(s_per_ms, dtype=complex))
     chunk = max(1, CHUNK_VALUES // max(tree.n_sections, 1))
-    path = path_to(tree, sec)
+    path = section_path(tree, sec)
     parts = []
     for lo in range(0, len(s), chunk):
         sol = solve_tree(tree, s[lo:lo + chunk], path=path)

@@ -13,7 +13,7 @@ import math
 import numpy as np
 
 from .sites import point_terms
-from .tree import path_to
+from .topology import section_path
 
 __all__ = ["map_points", "tree_map_logs", "path_points"]
 
@@ -50,7 +50,7 @@ def tree_map_logs(sol, sec, y_um):
 
 def path_points(tree, sec, y_um, spacing_um):
     """Points from the recording site to (sec, y) along the path, ≤ spacing apart."""
-    chain = path_to(tree, sec)
+    chain = section_path(tree, sec)
     out_sec, out_y = [chain[0]], [0.0]
     for i in chain:
         end_um = float(y_um) if i == int(sec) else float(tree.length_um[i])

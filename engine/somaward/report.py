@@ -23,7 +23,8 @@ from .sanity import electrotonic_warnings, geometry_warnings, membrane_warnings
 from .scenario import locate_synapse, rename_old_keys, validate
 from .schema_check import check_depth, join_path
 from .sites import point_terms
-from .tree import branch_section_indices, build_tree, solve_tree
+from .topology import electrotonic_distance, locate_point, sections_of_branch
+from .tree import build_tree, solve_tree
 
 __all__ = ["solve", "non_finite"]
 
@@ -77,7 +78,7 @@ def _impedance(ln_z):
 def _branch_tables(tree):
     lambda_um, elec, secs, term_x = {}, {}, {}, {}
     for b in range(len(tree.branch_ids)):
-        idx = branch_section_indices(tree, b)
+        idx = sections_of_branch(tree, b)
         bid = tree.branch_ids[b]
         rows = [{"length_um": float(tree.length_um[i]), "diameter_um": float(tree.diameter_um[i]),
                  "lambda_um": float(tree.lambda_um[i]),
@@ -86,19 +87,8 @@ def _branch_tables(tree):
         lambda_um[bid] = rows[0]["lambda_um"] if len(rows) == 1 else [r["lambda_um"] for r in rows]
         elec[bid] = math.fsum(r["electrotonic_length"] for r in rows)
         if tree.terminal_branch[b]:
-            i = idx[-1]
-            term_x[bid] = float(tree.electrotonic_start[i] + tree.electrotonic_length[i])
+            term_x[bid] = float(electrotonic_distance(tree, idx[-1]))
     return lambda_um, elec, secs, term_x
-
-
-def _site_section(tree, branch_index, distance_um):
-    """(section, y, k) of a point given by branch and distance from the branch's proximal end:
-    the section, the distance along it (µm) and its number in the branch, counted from 1."""
-    idx = branch_section_indices(tree, branch_index)
-    for k, i in enumerate(idx):
-        if distance_um <= tree.start_um[i] + tree.length_um[i] or i == idx[-1]:
-            return i, float(min(max(distance_um - tree.start_um[i], 0.0), tree.length_um[i])), k + 1
-    raise AssertionError("unreachable")
 
 
 def _soma_block(tree, scenario):
@@ -155,7 +145,7 @@ def _tree_map(tree, scenario, sol_dc):
     freq_hz = scenario["map_frequency_hz"]
     sol = sol_dc if freq_hz == 0 else solve_tree(tree, laplace_of_hz([freq_hz]))
     up, down = tree_map_logs(sol, sec, y_um)
-    x = tree.electrotonic_start[sec] + y_um / tree.lambda_um[sec]
+    x = electrotonic_distance(tree, sec, y_um)
     return {"frequency_hz": float(freq_hz),
             "branch": [tree.branch_ids[b] for b in tree.branch_of[sec]],
             "distance_um": [float(v) for v in tree.start_um[sec] + y_um],
@@ -170,7 +160,7 @@ def _path_profile(tree, sol_dc, sec, y_um, spacing_um):
     t = point_terms(sol_dc, psec, py_um)
     u_site = point_terms(sol_dc, [sec], [y_um])["up"][0, 0]
     return {"path_distance_um": [float(v) for v in tree.path_start_um[psec] + py_um],
-            "electrotonic_distance": [float(v) for v in tree.electrotonic_start[psec] + py_um / tree.lambda_um[psec]],
+            "electrotonic_distance": [float(v) for v in electrotonic_distance(tree, psec, py_um)],
             "branch": [tree.branch_ids[b] for b in tree.branch_of[psec]],
             "input_at_site": _magnitudes(u_site - t["up"][:, 0]),
             "input_at_soma": _magnitudes(t["down"][:, 0])}
@@ -202,12 +192,12 @@ def solve(scenario):
     tree = build_tree(sc["branches"], sc["membrane"], sc["soma"])
     index = {b["id"]: i for i, b in enumerate(sc["branches"])}
     b, distance_um = locate_synapse(sc["synapse"], sc["branches"], index)
-    sec, y_um, cylinder = _site_section(tree, b, distance_um)
+    sec, y_um, cylinder = locate_point(tree, b, distance_um)
     sol_dc, steady, values = _steady_state(tree, sec, y_um, warnings)
     frequency, centroid = _frequency(tree, sec, y_um, sc["frequencies_hz"], warnings)
     lambda_um, elec, secs, term_x = _branch_tables(tree)
     warnings += electrotonic_warnings(term_x)
-    x_site = float(tree.electrotonic_start[sec] + y_um / tree.lambda_um[sec])
+    x_site = float(electrotonic_distance(tree, sec, y_um))
     report = {
         "engine_version": __version__,
         "recording_site": "soma" if tree.has_soma else "root",

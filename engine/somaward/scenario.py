@@ -9,6 +9,7 @@ import math
 
 from .errors import ScenarioError
 from .schema_check import check, check_depth, describe, did_you_mean, load_schema
+from .topology import children as children_of, find_loop, locate_on_chain, path_to_root
 
 __all__ = ["validate", "default_frequencies_hz", "load_schema", "MAX_MAP_POINTS", "locate_synapse",
            "rename_old_keys"]
@@ -103,8 +104,13 @@ def _check_ids(branches):
     return index
 
 
+def _parent_indices(branches, index):
+    """Each branch's parent as an index into ``branches`` (−1 for a branch leaving the soma)."""
+    return [-1 if b["parent"] is None else index[b["parent"]] for b in branches]
+
+
 def _check_parents(branches, index):
-    children = [[] for _ in branches]
+    """Every parent names another branch and every branch leads to the soma; the children."""
     for i, b in enumerate(branches):
         p = b["parent"]
         if p is None:
@@ -114,28 +120,14 @@ def _check_parents(branches, index):
                                 + " (use null for a branch leaving the soma)")
         if p == b["id"]:
             raise ScenarioError(f"branches[{i}].parent", f"a branch cannot be its own parent ({describe(p, 80)})")
-        children[index[p]].append(i)
-    _check_cycles(branches, index)
-    return children
-
-
-def _check_cycles(branches, index):
-    state = [0] * len(branches)          # 0 unseen, 1 on the current chain, 2 reaches a root
-    for start in range(len(branches)):
-        chain, i = [], start
-        while i is not None and state[i] == 0:
-            state[i] = 1
-            chain.append(i)
-            p = branches[i]["parent"]
-            i = None if p is None else index[p]
-        if i is not None and state[i] == 1:
-            loop = chain[chain.index(i):] + [i]
-            names = " → ".join(_id_words(branches[j]["id"]) for j in loop[:6])
-            names += " → …" if len(loop) > 6 else ""
-            raise ScenarioError(f"branches[{i}].parent", f"the parent chain loops back on itself ({names}); "
-                                "every branch must lead to the soma")
-        for j in chain:
-            state[j] = 2
+    parents = _parent_indices(branches, index)
+    loop = find_loop(parents)
+    if loop is not None:
+        names = " → ".join(_id_words(branches[j]["id"]) for j in loop[:6])
+        names += " → …" if len(loop) > 6 else ""
+        raise ScenarioError(f"branches[{loop[0]}].parent", f"the parent chain loops back on itself ({names}); "
+                            "every branch must lead to the soma")
+    return children_of(parents)
 
 
 def _id_words(bid):
@@ -186,17 +178,8 @@ def _check_synapse(syn, branches, index, children):
                             f"got {describe(cur['tau_decay'])}")
 
 
-def _path_to(branches, index, terminal):
-    chain, i = [], index[terminal]
-    while i is not None:
-        chain.append(i)
-        p = branches[i]["parent"]
-        i = None if p is None else index[p]
-    return chain[::-1]
-
-
 def _on_path(syn, branches, index):
-    chain = _path_to(branches, index, syn["path"])
+    chain = path_to_root(_parent_indices(branches, index), index[syn["path"]])
     path_length_um = math.fsum(branch_length_um(branches[i]) for i in chain)
     if syn["path_distance"] > path_length_um * (1 + _REL_TOL):
         raise ScenarioError("synapse.path_distance", f"must be ≤ {path_length_um:g} µm (the path length from the "
@@ -210,14 +193,9 @@ def locate_synapse(syn, branches, index):
     if "branch" in syn:
         i = index[syn["branch"]]
         return i, min(float(syn["distance"]), branch_length_um(branches[i]))
-    chain = _path_to(branches, index, syn["path"])
-    start = 0.0
-    for i in chain:
-        length = branch_length_um(branches[i])
-        if syn["path_distance"] <= start + length or i == chain[-1]:
-            return i, min(max(syn["path_distance"] - start, 0.0), length)
-        start += length
-    raise AssertionError("unreachable")
+    chain = path_to_root(_parent_indices(branches, index), index[syn["path"]])
+    k, distance_um = locate_on_chain([branch_length_um(branches[i]) for i in chain], syn["path_distance"])
+    return chain[k], distance_um
 
 
 def _check_map_points(branches, spacing_um):

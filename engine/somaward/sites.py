@@ -16,7 +16,7 @@ A_site→soma / A_soma→site = Z_in,soma / Z_in,site that these satisfy).
 import numpy as np
 
 from . import cable
-from .tree import path_to
+from .topology import section_path
 
 __all__ = ["point_terms", "transfer_log"]
 
@@ -68,7 +68,7 @@ def transfer_log(sol, a, b):
     (sa, ya), (sb, yb) = a, b
     terms = point_terms(sol, [sa, sb], [ya, yb])
     up, down, y_node = terms["up"], terms["down"], terms["y_node_uS"]
-    anc_a, anc_b = path_to(t, sa)[::-1], path_to(t, sb)
+    anc_a, anc_b = section_path(t, sa)[::-1], section_path(t, sb)
     common = next((s for s in anc_a if s in set(anc_b)), None)
     base = -np.log(y_node[0])
     if common is None:                      # different stems: c is the recording site

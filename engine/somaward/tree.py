@@ -30,8 +30,9 @@ import numpy as np
 
 from . import cable
 from .membrane import input_resistance_infinite_Mohm, membrane_time_constant_ms, space_constant_um
+from .topology import children as children_of, roots
 
-__all__ = ["Tree", "TreeSolution", "build_tree", "solve_tree", "path_to", "branch_section_indices", "END_CODES"]
+__all__ = ["Tree", "TreeSolution", "build_tree", "solve_tree", "END_CODES"]
 
 END_CODES = {"internal": 0, "sealed": 1, "killed": 2, "infinite": 3, "load": 4}
 
@@ -76,11 +77,8 @@ def _branch_order(branches):
     """Branch indices in breadth-first order from the roots, and each branch's parent index."""
     index = {b["id"]: i for i, b in enumerate(branches)}
     parent = np.array([-1 if b["parent"] is None else index[b["parent"]] for b in branches])
-    children = [[] for _ in branches]
-    for i, p in enumerate(parent):
-        if p >= 0:
-            children[p].append(i)
-    order = [i for i in range(len(branches)) if parent[i] < 0]
+    children = children_of(parent)
+    order = roots(parent)
     head = 0
     while head < len(order):
         order.extend(children[order[head]])
@@ -292,24 +290,6 @@ def _up_pass(tree, s, y0, m):
         np.add.at(num, parent_row[lo:hi], yin[lo:hi])
     return {"gamma_distal": gam, "one_plus_gamma_distal": opg, "one_minus_gamma_distal": omg, "yin_uS": yin,
             "yload_uS": num}
-
-
-def branch_section_indices(tree, b):
-    """Section indices of branch ``b`` from proximal to distal (not contiguous in level order)."""
-    first, last = tree.branch_sections[b]
-    chain = [last]
-    while chain[-1] != first:
-        chain.append(int(tree.parent[chain[-1]]))
-    return chain[::-1]
-
-
-def path_to(tree, sec):
-    """Section indices from the recording site out to section ``sec``."""
-    chain = []
-    while sec >= 0:
-        chain.append(int(sec))
-        sec = int(tree.parent[sec])
-    return chain[::-1]
 
 
 def _down_pass(tree, levels, y0, kappa, m, up, y_root):
