@@ -42,8 +42,8 @@ def reflection(y0, load_num, load_den=1.0):
         The load admittance as a homogeneous pair; den = 0 is a killed end (YL = ∞).
     """
     y0d = y0 * load_den
-    total = y0d + load_num
-    return (y0d - load_num) / total, 2.0 * y0d / total, 2.0 * load_num / total
+    inv = 1.0 / (y0d + load_num)          # one division, three products
+    return (y0d - load_num) * inv, 2.0 * y0d * inv, 2.0 * load_num * inv
 
 
 def through_admittance(y0, gamma, one_minus_gamma, one_plus_gamma, kappa_m1):

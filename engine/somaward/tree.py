@@ -275,18 +275,14 @@ def _terminal_loads(tree, s, y0):
 
 
 def _up_pass(tree, s, y0, m):
-    num, den = _terminal_loads(tree, s, y0)
-    y0d = y0 * den                         # Y0 · den of each distal load (den = 0: killed)
+    """Leaves → root: Γ of each distal load and Yin of each section (:mod:`cable`'s formulas)."""
+    num, den = _terminal_loads(tree, s, y0)      # distal loads as num/den (den = 0: killed)
     gam, opg, omg, yin = (np.empty_like(y0) for _ in range(4))
     parent_row = np.where(tree.parent >= 0, tree.parent, tree.n_sections)
     for lo, hi in reversed(tree.levels):
-        a, load = y0d[lo:hi], num[lo:hi]
-        inv = 1.0 / (a + load)
-        g = np.multiply(a - load, inv, out=gam[lo:hi])
-        p = np.multiply(2.0 * a, inv, out=opg[lo:hi])
-        q = np.multiply(2.0 * load, inv, out=omg[lo:hi])
-        gm = g * m[lo:hi]
-        np.multiply(y0[lo:hi], (q - gm) / (p + gm), out=yin[lo:hi])
+        g, p, q = cable.reflection(y0[lo:hi], num[lo:hi], den[lo:hi])
+        gam[lo:hi], opg[lo:hi], omg[lo:hi] = g, p, q
+        yin[lo:hi] = cable.through_admittance(y0[lo:hi], g, q, p, m[lo:hi])
         np.add.at(num, parent_row[lo:hi], yin[lo:hi])
     return {"gamma_distal": gam, "one_plus_gamma_distal": opg, "one_minus_gamma_distal": omg, "yin_uS": yin,
             "yload_uS": num}
@@ -304,13 +300,9 @@ def _down_pass(tree, levels, y0, kappa, m, up, y_root):
                 y_prox = y_root[None, :] - yin[lo:hi]
             else:
                 y_prox = node_y[p] - yin[lo:hi]
-            a = y0[lo:hi]
-            inv = 1.0 / (a + y_prox)
-            g = np.multiply(a - y_prox, inv, out=gup[lo:hi])
-            op = np.multiply(2.0 * a, inv, out=opu[lo:hi])
-            om = np.multiply(2.0 * y_prox, inv, out=omu[lo:hi])
-            gm = g * m[lo:hi]
-            np.add(a * (om - gm) / (op + gm), yload[lo:hi], out=node_y[lo:hi])
+            g, op, om = cable.reflection(y0[lo:hi], y_prox)
+            gup[lo:hi], opu[lo:hi], omu[lo:hi] = g, op, om
+            node_y[lo:hi] = cable.through_admittance(y0[lo:hi], g, om, op, m[lo:hi]) + yload[lo:hi]
     sel = np.concatenate([np.arange(lo, hi) for lo, hi in levels]) if levels is not tree.levels else slice(None)
     zero = np.zeros_like(m[sel])
     own_d = cable.log_voltage_ratio(kappa[sel], gam[sel], opg[sel], zero, m[sel])
