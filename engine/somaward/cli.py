@@ -170,6 +170,19 @@ def build_parser():
 
 
 def main(argv=None):
+    """Run the ``somaward`` command.
+
+    Parameters
+    ----------
+    argv : list of str, optional
+        The arguments after the program name; ``sys.argv[1:]`` when None (default).
+
+    Returns
+    -------
+    int
+        Exit code: 0 done, 2 bad input or usage (one line on stderr naming the field), 3 an
+        internal error (one line with the scenario's fingerprint).
+    """
     args = build_parser().parse_args(argv)
     try:
         args.run(args)

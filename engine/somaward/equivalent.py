@@ -78,12 +78,42 @@ _BEYOND = 1e-12          # relative slack when placing the site on the cylinder
 
 
 def rule_ratio(d_parent_um, d_children_um):
-    """d_parent^{3/2} / Σ d_child^{3/2} at one branch point (1 when the 3/2 rule holds; Rall 1962)."""
+    """d_parent^{3/2} / Σ d_child^{3/2} at one branch point: 1 when the 3/2 power rule holds (Rall 1962).
+
+    Parameters
+    ----------
+    d_parent_um : float
+        Diameter of the parent at the branch point (µm).
+    d_children_um : sequence of float
+        Diameters of the children at the branch point (µm).
+
+    Returns
+    -------
+    float
+        The ratio (dimensionless).
+
+    Examples
+    --------
+    A parent of 2^{2/3} µm with two daughters of 1 µm meets the rule:
+
+    >>> round(rule_ratio(2 ** (2 / 3), [1.0, 1.0]), 12)
+    1.0
+    """
     return float(d_parent_um) ** 1.5 / math.fsum(float(d) ** 1.5 for d in d_children_um)
 
 
 def equivalent_diameter_um(stem_diameters_um):
-    """d_eq = (Σ d_stem^{3/2})^{2/3} (µm) of the cylinder equivalent to the stems (Rall 1962).
+    """d_eq = (Σ d_stem^{3/2})^{2/3}: the diameter of the cylinder equivalent to the stems (Rall 1962).
+
+    Parameters
+    ----------
+    stem_diameters_um : sequence of float
+        Diameters of the stems leaving the soma (µm).
+
+    Returns
+    -------
+    float
+        d_eq (µm).
 
     Examples
     --------
@@ -98,7 +128,17 @@ def _ok(departure, tolerance):
 
 
 def branch_point_rows(tree, tolerance=DEFAULT_TOLERANCE):
-    """The 3/2 rule at every branch point (branches with children), in branch-table order.
+    """The 3/2 power rule at every branch point (branches with children), in branch-table order.
+
+    Condition 1 of the reduction (Rall 1962; 1964): d_parent^{3/2} = Σ d_child^{3/2}, with the
+    parent's distal cylinder and each child's proximal cylinder.
+
+    Parameters
+    ----------
+    tree : Tree
+        The full tree, from :func:`~somaward.tree.build_tree`.
+    tolerance : float, default DEFAULT_TOLERANCE (0.05)
+        Largest relative departure that still counts as meeting the rule (dimensionless).
 
     Returns
     -------
@@ -121,14 +161,23 @@ def branch_point_rows(tree, tolerance=DEFAULT_TOLERANCE):
 
 
 def cylinder_join_rows(tree, tolerance=DEFAULT_TOLERANCE):
-    """The 3/2 rule at joins between the cylinders of one branch: d_prev^{3/2} = d_next^{3/2}.
+    """The 3/2 power rule at joins between the cylinders of one branch: d_prev^{3/2} = d_next^{3/2}.
+
+    A diameter step inside a branch is a branch point with one child (module docstring).
+
+    Parameters
+    ----------
+    tree : Tree
+        The full tree, from :func:`~somaward.tree.build_tree`.
+    tolerance : float, default DEFAULT_TOLERANCE (0.05)
+        Largest relative departure that still counts as meeting the rule (dimensionless).
 
     Returns
     -------
     list of dict
         ``branch``, ``cylinder`` (number of the cylinder after the step, counted from 1 at the
-        branch's proximal end, so the step lies between cylinders ``cylinder - 1`` and ``cylinder``),
-        ``diameter_before_um``, ``diameter_after_um``, ``ratio``, ``departure``, ``ok``.
+        branch's proximal end, so the step lies between cylinders ``cylinder - 1`` and
+        ``cylinder``), ``diameter_before_um``, ``diameter_after_um``, ``ratio``, ``departure``, ``ok``.
     """
     rows = []
     for b, bid in enumerate(tree.branch_ids):
@@ -184,13 +233,25 @@ def _rel(value, ref):
 def terminal_rows(tree, tolerance=DEFAULT_TOLERANCE):
     """Terminal X, end conditions, the chosen L and which terminals break conditions 2 and 4.
 
+    Condition 2 (every terminal at the same electrotonic distance X = Σ ℓ_i/λ_i) and condition 4
+    (like ends) of Rall 1962; 1964. L for unequal X is the rule chosen here: the
+    membrane-area-weighted mean of the terminal X, or the largest X with infinite ends.
+
+    Parameters
+    ----------
+    tree : Tree
+        The full tree, from :func:`~somaward.tree.build_tree`.
+    tolerance : float, default DEFAULT_TOLERANCE (0.05)
+        Largest relative departure that still counts as meeting the rule (dimensionless).
+
     Returns
     -------
     dict
         ``rows`` (per terminal: ``branch``, ``electrotonic_distance``, ``membrane_area_um2``,
         ``departure`` = X/L − 1, ``x_ok``, ``end``, ``end_ok``, ``ok``), ``electrotonic_length`` L
-        (area-weighted mean, or the largest X for infinite ends), ``x_min``, ``x_max``, ``end``, ``like_ends``,
-        ``equal_x_required``, ``load`` (normalised G, C of the cylinder's end or None).
+        (area-weighted mean, or the largest X for infinite ends), ``x_min``, ``x_max``, ``end``,
+        ``like_ends``, ``equal_x_required``, ``load`` (the cylinder's load per d^{3/2}:
+        ``g_uS_per_d32`` in µS/µm^{3/2} and ``c_nF_per_d32`` in nF/µm^{3/2}, or None).
     """
     geo = _terminal_geometry(tree)
     xs = [x for _, _, x, _ in geo]
@@ -226,9 +287,13 @@ def _stem_diameters_um(tree):
 def cylinder_scenario(tree, scenario, terminals):
     """The equivalent cylinder as a one-branch scenario (same membrane, same soma).
 
+    Diameter d_eq = (Σ d_stem^{3/2})^{2/3}, electrotonic length L from :func:`terminal_rows`,
+    length L·λ(d_eq), and the terminals' common end (a load scaled by d_eq^{3/2}); Rall 1962; 1964.
+
     Parameters
     ----------
     tree : Tree
+        The full tree, from :func:`~somaward.tree.build_tree`.
     scenario : dict
         The validated scenario (``membrane``, ``soma``).
     terminals : dict
@@ -256,24 +321,28 @@ def cylinder_scenario(tree, scenario, terminals):
 
 
 def compare_logs(tree, cyl_tree, sec, y_um, s_per_ms, sol=None):
-    """Complex logs at one site of the full tree and at the same X on the cylinder.
+    """Complex logs at one site of the full tree and at the same X on the equivalent cylinder.
 
     Parameters
     ----------
-    tree, cyl_tree : Tree
-        The full tree and the one-branch cylinder (from :func:`cylinder_scenario`).
-    sec, y_um : int, float
-        The site: section of ``tree`` and distance (µm) from its proximal end.
+    tree : Tree
+        The full tree, from :func:`~somaward.tree.build_tree`.
+    cyl_tree : Tree
+        The one-branch cylinder, built from :func:`cylinder_scenario`.
+    sec : int
+        Section of ``tree`` holding the site.
+    y_um : float
+        Distance of the site from that section's proximal end (µm).
     s_per_ms : array_like
         Laplace variables s (1/ms).
     sol : TreeSolution, optional
-        ``solve_tree(tree, s)`` if the caller has it already.
+        ``solve_tree(tree, s_per_ms)`` if the caller has it already.
 
     Returns
     -------
     dict of (F,) complex arrays (None for the cylinder when X lies beyond its end)
         ``tree_down``/``cyl_down`` = ln A soma→site; ``tree_ln_z_soma``/``cyl_ln_z_soma`` and
-        ``tree_ln_z_transfer``/``cyl_ln_z_transfer`` (ln MΩ); ``tree_up`` = ln A site→soma and
+        ``tree_ln_z_transfer``/``cyl_ln_z_transfer`` (ln of MΩ); ``tree_up`` = ln A site→soma and
         ``tree_ln_z_site`` (full tree only: the cylinder does not give them).
     """
     s = np.atleast_1d(np.asarray(s_per_ms))
@@ -385,10 +454,23 @@ def _conditions(points, joins, terms):
 
 
 def cylinder_curve(cyl_tree, n_points=51):
-    """Steady-state soma→site attenuation along the equivalent cylinder, X from 0 to L.
+    """Steady-state soma→site voltage ratio along the equivalent cylinder, X from 0 to L.
 
-    Returns ``{"electrotonic_distance": [...], "soma_to_site": [...]}`` (n_points each), the curve
-    the page draws against the tree's own branches.
+    Solved by the engine's own tree code on the one-branch cylinder (current injected at the
+    soma; Rall 1959's cylinder with the cylinder's end condition).
+
+    Parameters
+    ----------
+    cyl_tree : Tree
+        The one-branch cylinder, built from :func:`cylinder_scenario`.
+    n_points : int, default 51
+        Number of points, evenly spaced in X.
+
+    Returns
+    -------
+    dict
+        ``{"electrotonic_distance": [...], "soma_to_site": [...]}`` (``n_points`` each), the curve
+        the page draws against the tree's own branches.
     """
     length_um = float(cyl_tree.length_um[0])
     y_um = np.linspace(0.0, length_um, n_points)
@@ -400,7 +482,7 @@ def cylinder_curve(cyl_tree, n_points=51):
 
 
 def equivalent_cylinder(tree, scenario, sec, y_um, sol_dc=None):
-    """The ``equivalent_cylinder`` block of the report (keys in DEVELOPERS.md).
+    """The ``equivalent_cylinder`` block of the report (keys in DEVELOPERS.md; Rall 1962; 1964).
 
     Parameters
     ----------
@@ -408,10 +490,16 @@ def equivalent_cylinder(tree, scenario, sec, y_um, sol_dc=None):
         The full tree, from :func:`~somaward.tree.build_tree`.
     scenario : dict
         The validated scenario; ``equivalent_cylinder.tolerance`` (default 0.05) is read from it.
-    sec, y_um : int, float
-        The synapse: section of ``tree`` and distance (µm) from the section's proximal end.
+    sec : int
+        Section of ``tree`` holding the synapse.
+    y_um : float
+        Distance of the synapse from that section's proximal end (µm).
     sol_dc : TreeSolution, optional
         The steady-state solution of ``tree`` (``solve_tree(tree, [0.0])``), if already computed.
+
+    Returns
+    -------
+    dict
     """
     tol = float(scenario.get("equivalent_cylinder", {}).get("tolerance", DEFAULT_TOLERANCE))
     points, joins = branch_point_rows(tree, tol), cylinder_join_rows(tree, tol)
@@ -463,6 +551,11 @@ RULE_TABLE_BLOCKS = (
 
 def rule_table_rows(report):
     """The 3/2-rule table for exports: a block of branch points, then a block of diameter steps.
+
+    Parameters
+    ----------
+    report : dict
+        A report from :func:`somaward.solve`.
 
     Returns
     -------
@@ -574,8 +667,20 @@ def _error_clause(what, err):
 
 
 def methods_sentence(report):
-    """The equivalent-cylinder part of the methods paragraph: the conditions tested, the verdict and
-    the cylinder's error, in the words of :mod:`somaward.quantities` (a few sentences)."""
+    """The equivalent-cylinder part of the methods paragraph, in the words of :mod:`somaward.quantities`.
+
+    A few sentences: the conditions tested (Rall 1962; 1964) with the tolerance, the verdict, and
+    the cylinder's error against the full tree at 0 Hz.
+
+    Parameters
+    ----------
+    report : dict
+        A report from :func:`somaward.solve`.
+
+    Returns
+    -------
+    str
+    """
     label = _label
     eq = report["equivalent_cylinder"]
     rec = report.get("recording_site", "soma")

@@ -47,19 +47,58 @@ def fingerprint(scenario):
 
     Canonical: sorted keys, no spaces, and integral numbers written as integers, so that the same
     cell gives the same fingerprint whether a program wrote 4 or 4.0.
+
+    Parameters
+    ----------
+    scenario : dict
+        A validated scenario (the report's ``scenario``).
+
+    Returns
+    -------
+    str
+
+    Examples
+    --------
+    >>> fingerprint({"a": 4.0}) == fingerprint({"a": 4})
+    True
     """
     text = json.dumps(_canonical(scenario), sort_keys=True, separators=(",", ":"), ensure_ascii=False)
     return hashlib.sha256(text.encode("utf-8")).hexdigest()[:12]
 
 
 def format_value(value, key=None, digits=None):
-    """A value rounded for reading, as :func:`somaward.quantities.format_value` ('—' for None)."""
+    """A value rounded for reading, as :func:`somaward.quantities.format_value` ('—' for None).
+
+    Parameters
+    ----------
+    value : number, str, bool, list or None
+        The report's value.
+    key : str, optional
+        Its report key, whose quantity sets the digits and whether it is shown in %.
+    digits : int, optional
+        Significant digits, overriding the quantity's.
+
+    Returns
+    -------
+    str
+    """
     return Q.format_value(value, key, digits)
 
 
 def stamp(report):
-    """'Somaward <version>, scenario <fingerprint>': the line every exported block carries, as the
-    report itself states it (``report["stamp"]["text"]``)."""
+    """The line every exported block carries: 'Somaward <version>, scenario <fingerprint>'.
+
+    As the report itself states it (``report["stamp"]["text"]``).
+
+    Parameters
+    ----------
+    report : dict
+        A report from :func:`somaward.solve` (or its JSON read back).
+
+    Returns
+    -------
+    str
+    """
     return report["stamp"]["text"]
 
 
@@ -71,8 +110,19 @@ def results_groups(report, form="plain"):
     """The results table as groups: ``[(caption, [(key, label, value, unit)])]``.
 
     One group per table of :data:`RESULT_TABLES` (``quantities.TABLES``), rows from
-    ``quantities.table_rows``; ``label``, ``unit`` and ``caption`` rendered in ``form`` ("plain"
-    or "latex", escaped) for the report's recording site; ``value`` the report's own value.
+    ``quantities.table_rows``; ``label``, ``unit`` and ``caption`` rendered in ``form`` for the
+    report's recording site; ``value`` the report's own value.
+
+    Parameters
+    ----------
+    report : dict
+        A report from :func:`somaward.solve` (or its JSON read back).
+    form : {"plain", "latex"}, default "plain"
+        How labels, units and captions are written ("latex": escaped for LaTeX).
+
+    Returns
+    -------
+    list of (str, list of (str, str, object, str))
     """
     rec = _rec(report)
     groups = []
@@ -175,6 +225,19 @@ def table(report, fmt, cautions=True):
 
     Rows are the tables of :data:`RESULT_TABLES` in turn, each opened by its caption; every label,
     unit and rounding is the quantity's own (:mod:`somaward.quantities`).
+
+    Parameters
+    ----------
+    report : dict
+        A report from :func:`somaward.solve` (or its JSON read back).
+    fmt : {"md", "tsv", "csv", "latex"}
+        The text format.
+    cautions : bool, default True
+        Whether the block carries the cautions of a passive-cable estimate (``quantities.CAUTIONS``).
+
+    Returns
+    -------
+    str
     """
     _check(fmt)
     form = "latex" if fmt == "latex" else "plain"
@@ -191,8 +254,24 @@ def _head(key, rec, form):
 
 
 def rule_table(report, fmt, cautions=True):
-    """The 3/2-rule table (Rall 1962): a block of branch points, then a block of the diameter steps
-    between the cylinders of a branch; column heads are the quantities' labels and units."""
+    """The 3/2-rule table (Rall 1962) as ``md``, ``tsv``, ``csv`` or ``latex`` text.
+
+    A block of branch points, then a block of the diameter steps between the cylinders of a
+    branch; column heads are the quantities' labels and units.
+
+    Parameters
+    ----------
+    report : dict
+        A report from :func:`somaward.solve` (or its JSON read back).
+    fmt : {"md", "tsv", "csv", "latex"}
+        The text format.
+    cautions : bool, default True
+        Whether the block carries the cautions of a passive-cable estimate (``quantities.CAUTIONS``).
+
+    Returns
+    -------
+    str
+    """
     _check(fmt)
     rec, form = _rec(report), ("latex" if fmt == "latex" else "plain")
     blocks = []
@@ -306,8 +385,22 @@ def _ends_sentences(scenario):
 
 
 def methods_text(report):
-    """A methods paragraph stating the model, every parameter with its unit, the quantities reported
-    (defined in the words of :mod:`somaward.quantities`), the cautions, and the references cited."""
+    """A methods paragraph for a paper, and the references it cites.
+
+    It states the model (passive cables solved exactly in the Laplace domain, Rall 1959; 1977),
+    every parameter with its unit, the quantities reported (defined in the words of
+    :mod:`somaward.quantities`), the equivalent-cylinder test (Rall 1962; 1964) and the cautions.
+
+    Parameters
+    ----------
+    report : dict
+        A report from :func:`somaward.solve` (or its JSON read back).
+
+    Returns
+    -------
+    str
+        The paragraph, a blank line, "References" and one full reference per line.
+    """
     sc, site, rec = report["scenario"], report["site"], _rec(report)
     mem, soma = sc["membrane"], sc["soma"]
     units = _input_units()
@@ -398,6 +491,17 @@ def render(report, fmt="json"):
     The cautions close every format: the JSON's ``caution`` key, the last rows of TSV, the last
     ``#`` lines of CSV, the 3/2-rule table's caption in LaTeX, and in Markdown the line under the
     results table and the methods paragraph.
+
+    Parameters
+    ----------
+    report : dict
+        A report from :func:`somaward.solve` (or its JSON read back).
+    fmt : {"json", "md", "tsv", "csv", "latex"}, default "json"
+        The output format (the CLI's ``--format``).
+
+    Returns
+    -------
+    str
     """
     if fmt == "json":
         return json.dumps(report, indent=1, ensure_ascii=False, allow_nan=False) + "\n"

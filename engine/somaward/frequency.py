@@ -26,18 +26,48 @@ CHUNK_VALUES = 400_000       # sections × frequencies held in memory at once
 
 
 def laplace_of_hz(freq_hz):
-    """s = i·2πf in 1/ms for frequencies in Hz."""
+    """The Laplace variable s = i·2πf of a sinusoid, in 1/ms.
+
+    Parameters
+    ----------
+    freq_hz : float or array
+        Frequency f (Hz).
+
+    Returns
+    -------
+    complex or ndarray
+        s (1/ms), purely imaginary.
+
+    Examples
+    --------
+    >>> complex(laplace_of_hz(1000.0 / (2 * 3.141592653589793)))
+    1j
+    """
     return 2j * math.pi * np.asarray(freq_hz, dtype=float) * 1e-3
 
 
 def site_response(tree, sec, y_um, s_per_ms):
-    """Complex logs at one site for Laplace variables ``s_per_ms`` (1/ms), processed in chunks.
+    """Complex logs at one site for Laplace variables ``s_per_ms``, computed in chunks of them.
+
+    The down pass runs along the path to the site only (module docstring).
+
+    Parameters
+    ----------
+    tree : Tree
+        From :func:`somaward.tree.build_tree`.
+    sec : int
+        Section of the site.
+    y_um : float
+        Distance of the site from the section's proximal end (µm).
+    s_per_ms : array_like
+        Laplace variables s (1/ms), e.g. :func:`laplace_of_hz` of the frequencies.
 
     Returns
     -------
     dict of (F,) complex arrays
-        ``up`` = ln A_site→soma, ``down`` = ln A_soma→site, ``ln_z_site`` = ln Z_in at the site,
-        ``ln_z_root`` = ln Z_in at the recording site (MΩ).
+        ``up`` = ln A_site→soma, ``down`` = ln A_soma→site (A the voltage ratio, ≤ 1 in modulus),
+        ``ln_z_site`` = ln Z_in at the site, ``ln_z_root`` = ln Z_in at the recording site (Z in
+        MΩ; imaginary parts the phases in rad, unwrapped).
     """
     s = np.atleast_1d(np.asarray(s_per_ms, dtype=complex))
     chunk = max(1, CHUNK_VALUES // max(tree.n_sections, 1))
@@ -52,15 +82,46 @@ def site_response(tree, sec, y_um, s_per_ms):
 
 
 def complex_step_per_ms(tree):
-    """The step h (1/ms) of the complex-step derivative at s = 0: h·τ = 1e-10 for the slowest τ."""
+    """The step h of the complex-step derivative at s = 0, in 1/ms: h·τ = 1e-10 for the slowest τ.
+
+    The slowest of the membrane time constant, the soma's and each lumped load's C/(G + G∞), so
+    that h is ≪ 1/τ for every pole near the origin (Squire & Trapp 1998, SIAM Rev 40:110).
+
+    Parameters
+    ----------
+    tree : Tree
+        From :func:`somaward.tree.build_tree`.
+
+    Returns
+    -------
+    float
+        h (1/ms).
+    """
     return 1e-10 / max(tree.tau_ms, _slowest_load_ms(tree), 1e-6)
 
 
 def centroid_delays_ms(tree, sec, y_um, response=None):
-    """Centroid transfer delays (ms): site→soma and soma→site, by the complex step at s = 0.
+    """Centroid transfer delays site→soma and soma→site, by the complex step at s = 0 (ms).
 
-    ``response``: a :func:`site_response` at s = i·h, h from :func:`complex_step_per_ms`, if the
-    caller computed it with other frequencies.
+    The delay between the centroids of the input and the output voltage, −d/ds ln A(s) at s = 0
+    for the voltage ratio A (Agmon-Snir & Segev 1993, J Neurophysiol 70:2066); exact to O(h²)
+    as −Im ln A(ih)/h, with no subtractive cancellation. Also the 0 Hz limit of the phase delay.
+
+    Parameters
+    ----------
+    tree : Tree
+        From :func:`somaward.tree.build_tree`.
+    sec : int
+        Section of the site.
+    y_um : float
+        Distance of the site from the section's proximal end (µm).
+    response : dict, optional
+        A :func:`site_response` at s = i·h, h from :func:`complex_step_per_ms`, if the caller has
+        computed it beside other frequencies; computed here when None (default).
+
+    Returns
+    -------
+    site_to_soma_ms, soma_to_site_ms : float
     """
     h = complex_step_per_ms(tree)
     r = site_response(tree, sec, y_um, [1j * h]) if response is None else response

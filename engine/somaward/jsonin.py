@@ -38,12 +38,24 @@ _SURROGATE = re.compile(r'(?<!\\)(?:\\\\)*\\u([dD][89a-fA-F][0-9a-fA-F]{2})')
 class JSONInputError(ScenarioError):
     """Input that is not UTF-8 JSON within the limits; one line with the line and column.
 
-    Attributes
+    A :class:`~somaward.errors.ScenarioError` with an empty path, so the CLI answers it with exit
+    code 2 and the page shows its plain form.
+
+    Parameters
     ----------
     name : str
         The input's name in the message (a file name or ``stdin``).
-    line, column : int or None
+    what : str
+        What is wrong, e.g. ``not valid JSON: Expecting ',' delimiter``.
+    line, column : int, optional
         Where the problem is (from 1), when it has a place.
+    advice : str, optional
+        What to do about it, appended after a semicolon.
+
+    Attributes
+    ----------
+    name : str
+    line, column : int or None
     """
 
     def __init__(self, name, what, line=None, column=None, advice=""):
@@ -61,6 +73,17 @@ def _place(text, pos):
 
 def decode(data, name="input"):
     """UTF-8 bytes → text, dropping a UTF-8 byte-order mark.
+
+    Parameters
+    ----------
+    data : bytes or str
+        The input (text is returned without its byte-order mark).
+    name : str, default "input"
+        The input's name in messages (a file name or ``stdin``).
+
+    Returns
+    -------
+    str
 
     Raises
     ------
@@ -169,7 +192,25 @@ def _first_duplicate(text):
 
 
 def parse(text, name="input"):
-    """JSON text → value, within the limits; every failure one line with its line and column."""
+    """JSON text → value, within the limits of depth and number length, with no repeated key.
+
+    Parameters
+    ----------
+    text : str
+        JSON text (a leading byte-order mark is dropped).
+    name : str, default "input"
+        The input's name in messages (a file name or ``stdin``).
+
+    Returns
+    -------
+    any
+        The value, objects as dicts.
+
+    Raises
+    ------
+    JSONInputError
+        One line with its line and column for every failure.
+    """
     if text.startswith("\ufeff"):
         text = text[1:]
     _scan(text, name)
@@ -190,13 +231,50 @@ def parse(text, name="input"):
 
 
 def load_bytes(data, name="input"):
-    """UTF-8 JSON bytes (a BOM accepted) → value; :class:`JSONInputError` on any failure."""
+    """UTF-8 JSON bytes (a BOM accepted) → value.
+
+    Parameters
+    ----------
+    data : bytes
+        The input's bytes.
+    name : str, default "input"
+        The input's name in messages (a file name or ``stdin``).
+
+    Returns
+    -------
+    any
+
+    Raises
+    ------
+    JSONInputError
+        On any failure (:func:`decode`, :func:`parse`).
+
+    Examples
+    --------
+    >>> load_bytes(b'\\xef\\xbb\\xbf{"membrane": {"Rm": 20000}}')      # with a UTF-8 byte-order mark
+    {'membrane': {'Rm': 20000}}
+    """
     return parse(decode(data, name), name)
 
 
 def load_path(path):
-    """Read a scenario file (``"-"``: stdin) as bytes and parse it; :class:`JSONInputError` on
-    any failure, named by the file (``stdin`` for ``"-"``)."""
+    """Read a scenario file as bytes and parse it.
+
+    Parameters
+    ----------
+    path : str or path-like
+        The file; ``"-"`` reads stdin.
+
+    Returns
+    -------
+    any
+
+    Raises
+    ------
+    JSONInputError
+        On any failure, named by the file (``stdin`` for ``"-"``), including a file that cannot
+        be read.
+    """
     if path == "-":
         return load_bytes(sys.stdin.buffer.read(), "stdin")
     try:

@@ -23,10 +23,25 @@ def _pieces(length_um, spacing_um):
 
 
 def map_points(tree, spacing_um):
-    """Points (section, y) of the map: every section end and interior points at ≤ spacing.
+    """Points (section, y) of the whole-tree map: every section end and interior points ≤ spacing apart.
 
-    The first section of every branch also gets its proximal end, so each branch's curve
-    starts at its branch point.
+    The first section of every branch also gets its proximal end, so each branch's curve starts
+    at its branch point. Points are ordered by branch, then along it.
+
+    Parameters
+    ----------
+    tree : Tree
+        From :func:`somaward.tree.build_tree`.
+    spacing_um : float
+        Largest distance between neighbouring points on a section (µm); the scenario's
+        ``map_spacing_um``.
+
+    Returns
+    -------
+    sec : ndarray of int
+        Section index of each point.
+    y_um : ndarray
+        Distance of each point from its section's proximal end (µm).
     """
     n = _pieces(tree.length_um, spacing_um)
     first = np.zeros(tree.n_sections, dtype=bool)
@@ -43,13 +58,49 @@ def map_points(tree, spacing_um):
 
 
 def tree_map_logs(sol, sec, y_um):
-    """ln-attenuations at the map points for the first Laplace variable of ``sol``."""
+    """Log voltage ratios at the map points for the first Laplace variable of ``sol``.
+
+    Parameters
+    ----------
+    sol : TreeSolution
+        From :func:`somaward.tree.solve_tree` over the whole tree.
+    sec : array of int
+        Section index of each point (:func:`map_points`).
+    y_um : array of float
+        Distance of each point from its section's proximal end (µm).
+
+    Returns
+    -------
+    up, down : ndarray
+        ln(V_root/V_P) for current at each point P, and ln(V_P/V_root) for current at the root
+        (:func:`somaward.sites.point_terms`).
+    """
     t = point_terms(sol, sec, y_um)
     return t["up"][:, 0], t["down"][:, 0]
 
 
 def path_points(tree, sec, y_um, spacing_um):
-    """Points from the recording site to (sec, y) along the path, ≤ spacing apart."""
+    """Points from the recording site out to the point (``sec``, ``y_um``), ≤ spacing apart.
+
+    Parameters
+    ----------
+    tree : Tree
+        From :func:`somaward.tree.build_tree`.
+    sec : int
+        Section of the end point (the synapse's).
+    y_um : float
+        Distance of the end point from that section's proximal end (µm).
+    spacing_um : float
+        Largest distance between neighbouring points (µm).
+
+    Returns
+    -------
+    sec : ndarray of int
+        Section index of each point, starting with the recording site (distance 0 on the first
+        section of the path).
+    y_um : ndarray
+        Distance of each point from its section's proximal end (µm).
+    """
     chain = section_path(tree, sec)
     out_sec, out_y = [chain[0]], [0.0]
     for i in chain:

@@ -432,6 +432,17 @@ def canonical_key(key):
     Per-branch entries (``lambda_um.trunk``) are not recognised from the path alone, since branch
     ids may hold dots; :func:`quantity` tries the ``.*`` form for them.
 
+    Parameters
+    ----------
+    key : str
+        A report path.
+
+    Returns
+    -------
+    str
+
+    Examples
+    --------
     >>> canonical_key("equivalent_cylinder.branch_points[3].ratio")
     'equivalent_cylinder.branch_points[].ratio'
     """
@@ -439,10 +450,25 @@ def canonical_key(key):
 
 
 def quantity(key):
-    """The :class:`Quantity` of a report path (concrete or canonical); ``KeyError`` if none.
+    """The :class:`Quantity` of a report path (concrete or canonical).
 
     An item of a list of numbers (``frequency_response.frequencies_hz[3]``) is the list's
     quantity.
+
+    Parameters
+    ----------
+    key : str
+        A report path, concrete (``equivalent_cylinder.branch_points[3].ratio``, ``lambda_um.trunk``)
+        or canonical (``…branch_points[].ratio``, ``lambda_um.*``).
+
+    Returns
+    -------
+    Quantity
+
+    Raises
+    ------
+    KeyError
+        When no quantity is defined for the key.
     """
     k = canonical_key(key)
     if k in QUANTITIES:
@@ -463,6 +489,17 @@ _MARK = re.compile(r"([_^])\[([^\]]*)\]")
 def latex_escape(text):
     """Escape LaTeX's special characters and spell the symbols we use in math mode.
 
+    Parameters
+    ----------
+    text : str
+        Plain text (any object is turned into text first).
+
+    Returns
+    -------
+    str
+
+    Examples
+    --------
     >>> latex_escape("R_in 50 % µm")
     'R\\\\_in 50 \\\\% $\\\\mu$m'
     """
@@ -485,6 +522,26 @@ def _html_escape(text):
 def render_markup(text, form="plain", recording_site="soma", item=None):
     """Render this module's label markup as ``plain`` text, ``html`` or ``latex``.
 
+    ``_[x]`` is a subscript, ``^[x]`` a superscript, ``{rec}`` the recording site and ``{item}``
+    a branch id, which goes in after the markup is read, escaped for the form.
+
+    Parameters
+    ----------
+    text : str
+        A label or definition in the markup.
+    form : {"plain", "html", "latex"}, default "plain"
+        How the markup is written.
+    recording_site : {"soma", "root"}, default "soma"
+        The report's ``recording_site``: without a soma, labels name the root node.
+    item : str, optional
+        The branch id for ``{item}`` (left as ``{item}`` when None).
+
+    Returns
+    -------
+    str
+
+    Examples
+    --------
     >>> render_markup("d_[parent]^[3/2]", "html")
     'd<sub>parent</sub><sup>3/2</sup>'
     >>> render_markup("V_[{rec}]", "latex", "root")
@@ -517,12 +574,49 @@ def _render(text, escape, wrap):
 
 
 def label(key, recording_site="soma", form="plain", item=None):
-    """The label of a report key, for a report whose recording site is ``recording_site``."""
+    """The label of a report key, for a report whose recording site is ``recording_site``.
+
+    Parameters
+    ----------
+    key : str
+        A report path, concrete (``equivalent_cylinder.branch_points[3].ratio``, ``lambda_um.trunk``)
+        or canonical (``…branch_points[].ratio``, ``lambda_um.*``).
+    recording_site : {"soma", "root"}, default "soma"
+        The report's ``recording_site``: without a soma, labels name the root node.
+    form : {"plain", "html", "latex"}, default "plain"
+        How the markup is written.
+    item : str, optional
+        The branch id of a per-branch entry (``lambda_um.*``).
+
+    Returns
+    -------
+    str
+
+    Examples
+    --------
+    >>> label("lambda_um.*", item="trunk")
+    'Space constant λ of branch trunk'
+    """
     return render_markup(quantity(key).label, form, recording_site, item)
 
 
 def definition(key, recording_site="soma", form="plain"):
-    """The one-sentence definition of a report key."""
+    """The one-sentence definition of a report key.
+
+    Parameters
+    ----------
+    key : str
+        A report path, concrete (``equivalent_cylinder.branch_points[3].ratio``, ``lambda_um.trunk``)
+        or canonical (``…branch_points[].ratio``, ``lambda_um.*``).
+    recording_site : {"soma", "root"}, default "soma"
+        The report's ``recording_site``: without a soma, labels name the root node.
+    form : {"plain", "html", "latex"}, default "plain"
+        How the markup is written.
+
+    Returns
+    -------
+    str
+    """
     return render_markup(quantity(key).definition, form, recording_site)
 
 
@@ -530,7 +624,25 @@ _UNIT_LATEX = {"%": r"\%"}
 
 
 def unit(key, form="plain"):
-    """The unit of a report key as shown ("" for dimensionless numbers and text)."""
+    """The unit of a report key as shown ("" for dimensionless numbers and text).
+
+    Parameters
+    ----------
+    key : str
+        A report path, concrete (``equivalent_cylinder.branch_points[3].ratio``, ``lambda_um.trunk``)
+        or canonical (``…branch_points[].ratio``, ``lambda_um.*``).
+    form : {"plain", "html", "latex"}, default "plain"
+        "latex" escapes the unit for LaTeX; "plain" and "html" give it as it is.
+
+    Returns
+    -------
+    str
+
+    Examples
+    --------
+    >>> unit("soma_input_resistance_Mohm")
+    'MΩ'
+    """
     u = quantity(key).unit
     if form == "latex":
         return _UNIT_LATEX.get(u) or latex_escape(u)
@@ -543,6 +655,21 @@ def format_value(value, key=None, digits=None):
     Fractions shown as percentages (``Quantity.percent``) are multiplied by 100. Booleans are
     "yes"/"no", lists are joined with ", ".
 
+    Parameters
+    ----------
+    value : number, str, bool, list or None
+        A report value.
+    key : str, optional
+        Its report key; its quantity sets the digits and the percentage (4 digits without one).
+    digits : int, optional
+        Significant digits, overriding the quantity's.
+
+    Returns
+    -------
+    str
+
+    Examples
+    --------
     >>> format_value(0.0512, "equivalent_cylinder.branch_points[0].departure")
     '5.12'
     >>> format_value(None)
@@ -585,6 +712,17 @@ def table_rows(report, name):
     ``value`` the report's own value (a number, text, bool, list or None). Rows whose value the
     report does not hold (ρ without a soma) are left out; a per-branch key gives one row per
     branch.
+
+    Parameters
+    ----------
+    report : dict
+        A report from :func:`somaward.solve`.
+    name : str
+        A key of :data:`TABLES`.
+
+    Returns
+    -------
+    list of (str, str, object, str)
     """
     rec = report.get("recording_site", "soma")
     rows = []
@@ -604,6 +742,11 @@ def table_rows(report, name):
 def input_fields(recording_site="soma"):
     """The scenario's input fields, labelled from their one source, the scenario schema.
 
+    Parameters
+    ----------
+    recording_site : {"soma", "root"}, default "soma"
+        The report's ``recording_site``: without a soma, labels name the root node.
+
     Returns
     -------
     dict
@@ -618,9 +761,20 @@ def input_fields(recording_site="soma"):
 
 
 def input_label(path):
-    """Plain label of the input field a concrete JSON path names (or of its nearest labelled
-    parent); "" for the whole scenario.
+    """Plain label of the input field a concrete JSON path names, or of its nearest labelled parent.
 
+    Parameters
+    ----------
+    path : str
+        A JSON path of the scenario (``branches[2].diameter``); "" for the whole scenario.
+
+    Returns
+    -------
+    str
+        The label, or "" for the whole scenario.
+
+    Examples
+    --------
     >>> input_label("membrane.Ri")
     'Axial resistivity R_i'
     """
@@ -631,6 +785,11 @@ def input_label(path):
 
 def vocabulary(recording_site="soma"):
     """Every definition as JSON-ready data for the page (labels in plain text and HTML).
+
+    Parameters
+    ----------
+    recording_site : {"soma", "root"}, default "soma"
+        The report's ``recording_site``: without a soma, labels name the root node.
 
     Returns
     -------

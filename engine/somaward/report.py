@@ -238,6 +238,20 @@ def non_finite(value):
     depth together, with C-level iteration: ``map``, ``compress``), which is fast for the
     report's many small rows; only when a batch holds a non-finite number is the report walked
     item by item to name the place.
+
+    Parameters
+    ----------
+    value : dict or list
+        A report (or any JSON-like value of dicts, lists, numbers, strings, booleans and None).
+
+    Returns
+    -------
+    str or None
+
+    Examples
+    --------
+    >>> non_finite({"tau_m_ms": 20.0, "site": {"lambda_um": float("inf")}})
+    'an infinity at site.lambda_um'
     """
     if _all_finite(value):
         return None

@@ -39,6 +39,20 @@ def _outside(x, bounds):
 
 
 def membrane_warnings(membrane, soma):
+    """Warnings for membrane constants outside their usual ranges, and for whole-cell values typed as specific ones.
+
+    Parameters
+    ----------
+    membrane : dict
+        The validated scenario's ``membrane``: ``Rm`` (Ω·cm²), ``Ri`` (Ω·cm), ``Cm`` (µF/cm²).
+    soma : dict or None
+        The validated scenario's ``soma`` (its own ``Rm``), or None.
+
+    Returns
+    -------
+    list of str
+        One line per odd value, each stating the range outside which it fires (module docstring).
+    """
     rm_ohm_cm2, ri_ohm_cm, cm_uF_cm2 = membrane["Rm"], membrane["Ri"], membrane["Cm"]
     out = []
     if rm_ohm_cm2 < RM_SLIP:
@@ -60,6 +74,20 @@ def membrane_warnings(membrane, soma):
 
 
 def geometry_warnings(branches, soma=None):
+    """Warnings for soma and dendrite diameters outside their usual ranges.
+
+    Parameters
+    ----------
+    branches : list of dict
+        The validated scenario's ``branches`` (diameters in µm, per cylinder).
+    soma : dict or None, default None
+        The validated scenario's ``soma`` (``diameter`` in µm), or None.
+
+    Returns
+    -------
+    list of str
+        At most one line for the soma and one naming the first few odd branches.
+    """
     out = []
     if soma is not None and _outside(soma["diameter"], SOMA_DIAMETER_USUAL):
         out.append(f"soma.diameter = {soma['diameter']:g} µm is outside the usual {_span(SOMA_DIAMETER_USUAL)} µm "
@@ -78,8 +106,22 @@ def geometry_warnings(branches, soma=None):
 
 
 def electrotonic_warnings(terminal_x):
-    """A path much longer than the usual whole-neuron L ≈ 0.5–1.5 (common practice, no source):
-    warned beyond ELECTROTONIC_LENGTH_WARN, the threshold the message states."""
+    """A warning for a path much longer than the usual whole-neuron L ≈ 0.5–1.5.
+
+    Fires beyond :data:`ELECTROTONIC_LENGTH_WARN`, the threshold the message states (common
+    practice, no source).
+
+    Parameters
+    ----------
+    terminal_x : dict
+        Terminal branch id → electrotonic distance X of its distal end (dimensionless), as the
+        report's ``terminal_electrotonic_distance``.
+
+    Returns
+    -------
+    list of str
+        Empty, or one line naming the longest path.
+    """
     if not terminal_x:
         return []
     longest = max(terminal_x, key=terminal_x.get)

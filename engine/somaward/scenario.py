@@ -33,6 +33,11 @@ def rename_old_keys(scenario):
     A branch's chain of uniform cylinders was once the key ``sections``; it is now ``cylinders``
     (``sections`` means a whole unbranched cable in widely used simulation software).
 
+    Parameters
+    ----------
+    scenario : dict or any
+        A scenario as read from JSON; anything else is returned as it is.
+
     Returns
     -------
     scenario : dict
@@ -60,12 +65,35 @@ def rename_old_keys(scenario):
 def validate(scenario):
     """Check a scenario and return it with every default filled in.
 
-    Old key names (see :func:`rename_old_keys`) are accepted.
+    The structure is checked against the published schema (:mod:`somaward.schema_check`), then
+    the rules it cannot state: unique ids, parents that exist, no loop of parents, end conditions
+    on terminals only, the synapse inside its branch or path and not on a killed end, and a map
+    spacing that keeps the map under :data:`MAX_MAP_POINTS`. Old key names (see
+    :func:`rename_old_keys`) are accepted. The result validates again unchanged.
+
+    Parameters
+    ----------
+    scenario : dict
+        The scenario as read from JSON (units: µm, ms, pA, nS, pF, Hz; Rm Ω·cm², Ri Ω·cm,
+        Cm µF/cm²); not modified.
+
+    Returns
+    -------
+    dict
+        A new scenario, keys in the schema's order, every default filled in.
 
     Raises
     ------
     ScenarioError
         For the first rule broken, naming its JSON path.
+
+    Examples
+    --------
+    >>> sc = validate({"membrane": {"Rm": 20000, "Ri": 200},
+    ...                "branches": [{"id": "c", "parent": None, "length": 500, "diameter": 1}],
+    ...                "synapse": {"branch": "c", "distance": 250}})
+    >>> sc["membrane"]["Cm"], sc["branches"][0]["end"], sc["frequencies_hz"][:3]
+    (1.0, 'sealed', [0.0, 0.1, 0.126])
     """
     check_depth(scenario)                       # before anything recursive
     out = check(rename_old_keys(scenario)[0])
@@ -189,7 +217,29 @@ def _on_path(syn, branches, index):
 
 
 def locate_synapse(syn, branches, index):
-    """(branch index, distance from its proximal end in µm) of a validated synapse."""
+    """Where a validated synapse sits: its branch and its distance from the branch's proximal end.
+
+    A synapse given by ``path`` (a terminal branch id) and ``path_distance`` (µm from the soma) is
+    placed on the branch of that path holding the distance (:func:`somaward.topology.locate_on_chain`;
+    a point at a branch point belongs to the parent); one given by ``branch`` and ``distance`` is
+    clamped to its branch.
+
+    Parameters
+    ----------
+    syn : dict
+        The validated scenario's ``synapse``.
+    branches : list of dict
+        The validated scenario's ``branches``.
+    index : dict
+        Branch id → position in ``branches``.
+
+    Returns
+    -------
+    branch : int
+        Index of the branch in ``branches``.
+    distance_um : float
+        Distance of the synapse from the branch's proximal end (µm).
+    """
     if "branch" in syn:
         i = index[syn["branch"]]
         return i, min(float(syn["distance"]), branch_length_um(branches[i]))

@@ -97,6 +97,18 @@ def schema_fields():
 def field_of_path(path):
     """The canonical labelled field of a concrete JSON path, or of its nearest labelled parent.
 
+    Parameters
+    ----------
+    path : str
+        A concrete JSON path of the scenario.
+
+    Returns
+    -------
+    str or None
+        The schema path with ``[]`` for list items, or None when nothing on the path is labelled.
+
+    Examples
+    --------
     >>> field_of_path("branches[3].cylinders[0].diameter")
     'branches[].cylinders[].diameter'
     >>> field_of_path("membrane.bogus")
@@ -118,6 +130,24 @@ def describe(value, limit=40):
     Never raises: strings are quoted with their line breaks and other invisible characters
     escaped, integers too long for a float are described by their number of digits, and values
     that are not JSON are named by their type.
+
+    Parameters
+    ----------
+    value : any
+        The user's value.
+    limit : int, default 40
+        Longest quotation in characters; longer ones end in "…".
+
+    Returns
+    -------
+    str
+
+    Examples
+    --------
+    >>> describe(10 ** 400)
+    'an integer of 401 digits'
+    >>> describe({"a": [1, 2]})
+    '{"a": [1, 2]}'
     """
     if isinstance(value, str):
         text = repr(value)                  # repr escapes every non-printable character
@@ -152,10 +182,22 @@ def _digits(n):
 
 
 def quote_key(key, limit=100):
-    """A key as it appears in a JSON path: bare when it is a plain name (``membrane``), else a
-    double-quoted JSON string with every invisible or line-breaking character escaped, so that
-    a path is always one line (``["a\\nb"]``, ``[""]``). Keys longer than ``limit`` characters
-    are cut, with … before the closing quote."""
+    """A key as it appears in a JSON path, always on one line.
+
+    Bare when it is a plain name (``membrane``), else a double-quoted JSON string with every
+    invisible or line-breaking character escaped (``["a\\nb"]``, ``[""]``).
+
+    Parameters
+    ----------
+    key : str
+        An object key.
+    limit : int, default 100
+        Keys longer than this many characters are cut, with … before the closing quote.
+
+    Returns
+    -------
+    str
+    """
     if len(key) <= limit and _PLAIN_KEY.fullmatch(key):
         return key
     cut = key if len(key) <= limit else key[:limit]
@@ -181,12 +223,39 @@ def _jsonable(value):
 
 
 def one_line(text):
-    """``text`` with every character that would break or hide a line escaped (for messages)."""
+    """``text`` with every character that would break or hide a line escaped (for messages).
+
+    Parameters
+    ----------
+    text : str
+
+    Returns
+    -------
+    str
+    """
     return "".join(c if c.isprintable() else _u_escape(c) for c in text)
 
 
 def did_you_mean(word, choices):
-    """`` did you mean 'x'?`` for the closest of ``choices``, or an empty string."""
+    """`` did you mean 'x'?`` for the closest of ``choices``, or an empty string.
+
+    Parameters
+    ----------
+    word : any
+        What the user wrote (turned into text).
+    choices : iterable
+        The allowed values (turned into text).
+
+    Returns
+    -------
+    str
+        ``"; did you mean 'x'?"`` or ``""``.
+
+    Examples
+    --------
+    >>> did_you_mean("trnk", ["trunk", "tuft"])
+    "; did you mean 'trunk'?"
+    """
     close = difflib.get_close_matches(str(word), [str(c) for c in choices], n=1, cutoff=0.6)
     return f"; did you mean {describe(close[0])}?" if close else ""
 
@@ -246,8 +315,29 @@ _SURROGATE = re.compile("[\ud800-\udfff]")
 
 
 def join_path(path, key, root="scenario"):
-    """The JSON path of ``key`` inside ``path``; ``""`` is the whole value, written ``root`` when
-    a path would otherwise start with a bracket (``scenario[""]``, ``scenario[0]``)."""
+    """The JSON path of ``key`` inside ``path``.
+
+    ``""`` is the whole value, written ``root`` when a path would otherwise start with a bracket
+    (``scenario[""]``, ``scenario[0]``).
+
+    Parameters
+    ----------
+    path : str
+        The path of the containing object or list ("" for the whole value).
+    key : str or int
+        The key (or list index) inside it.
+    root : str, default "scenario"
+        The name of the whole value, for a path that starts with a bracket.
+
+    Returns
+    -------
+    str
+
+    Examples
+    --------
+    >>> join_path("branches", 2), join_path("", "membrane"), join_path("", 0, root="report")
+    ('branches[2]', 'membrane', 'report[0]')
+    """
     if isinstance(key, int):
         return f"{path or root}[{key}]"
     if not isinstance(key, str):
@@ -485,6 +575,18 @@ def check_depth(value, limit=MAX_DEPTH):
     Runs before anything recursive (the schema walk, copies, error quotations), and does not
     recurse itself, so a list nested 10⁵ deep is one line, not a RecursionError. The message
     names the first few keys of the path to the too-deep value, which exist in the input.
+
+    Parameters
+    ----------
+    value : any
+        A value as read from JSON.
+    limit : int, default MAX_DEPTH (32)
+        The deepest nesting allowed (the scenario itself is level 1).
+
+    Raises
+    ------
+    ScenarioError
+        When ``value`` nests deeper than ``limit``.
     """
     if not isinstance(value, (dict, list)):
         return
@@ -507,6 +609,18 @@ def check_depth(value, limit=MAX_DEPTH):
 
 def check(value, schema=None):
     """Check ``value`` against the scenario schema; return it with defaults filled in.
+
+    Parameters
+    ----------
+    value : dict
+        A scenario as read from JSON (its nesting already checked by :func:`check_depth`).
+    schema : dict, optional
+        A JSON Schema in the supported subset; the published scenario schema when None (default).
+
+    Returns
+    -------
+    dict
+        A new value with the schema's ``default`` values filled in.
 
     Raises
     ------

@@ -28,13 +28,27 @@ def _parent_rows(sol, sec, table):
 
 
 def point_terms(sol, sec, y_um):
-    """ln-attenuations and node admittance at points (``sec[j]``, ``y_um[j]``).
+    """Log voltage ratios and node admittance at points (``sec[j]``, ``y_um[j]``) of a solved tree.
+
+    The formulas of the module docstring (Rall 1959; Rall 1977, in the bounded form of
+    :mod:`somaward.cable`): soma→site from current injected at the root, site→soma from current
+    injected at the point, two separate injections.
+
+    Parameters
+    ----------
+    sol : TreeSolution
+        From :func:`somaward.tree.solve_tree`; with a ``path``, only points on it.
+    sec : int or array of int
+        Section index of each point.
+    y_um : float or array of float
+        Distance of each point from its section's proximal end (µm); clipped to the section.
 
     Returns
     -------
     dict of (P, F) arrays
         ``down`` = ln(V_P/V_root) for current at the root; ``up`` = ln(V_root/V_P) for current
-        at P; ``y_node_uS`` = total admittance at P (µS; inf at a killed end).
+        at P (real parts in nepers, imaginary parts phases in rad); ``y_node_uS`` = total
+        admittance at P (µS; inf at a killed end).
     """
     t = sol.tree
     sec = np.atleast_1d(np.asarray(sec, dtype=np.intp))
@@ -57,12 +71,25 @@ def point_terms(sol, sec, y_um):
 
 
 def transfer_log(sol, a, b):
-    """ln Z_ab: voltage at point ``b`` per unit current injected at point ``a`` (MΩ), shape (F,).
+    """ln Z_ab: the voltage at point ``b`` per unit current injected at point ``a``, shape (F,).
 
     Computed for the injection at ``a``: Z_aa times the voltage ratio along the path a → c → b,
     c the lowest common point, going proximally from a (ratios with the loads Yup) and distally
-    to b (ratios set by the distal subtrees). Z_ab = Z_ba is then reciprocity (Koch 1999 ch. 3),
-    which nothing here assumes.
+    to b (ratios set by the distal subtrees). Z_ab = Z_ba is then reciprocity (Koch 1999 ch. 3;
+    check S6), which nothing here assumes.
+
+    Parameters
+    ----------
+    sol : TreeSolution
+        From :func:`somaward.tree.solve_tree` over the whole tree (no ``path``).
+    a, b : (int, float)
+        The injection point and the recording point, each (section index, distance in µm from
+        the section's proximal end).
+
+    Returns
+    -------
+    ndarray
+        ln Z_ab (Z in MΩ; imaginary part the phase in rad), one per Laplace variable.
     """
     t = sol.tree
     (sa, ya), (sb, yb) = a, b

@@ -39,32 +39,76 @@ END_CODES = {"internal": 0, "sealed": 1, "killed": 2, "infinite": 3, "load": 4}
 
 @dataclass(frozen=True)
 class Tree:
-    """Sections of a tree in level order, with their cable constants.
+    """Sections (uniform cylinders) of a tree in level order, with their cable constants.
 
-    Attributes are numpy arrays over sections unless stated; ``parent`` is −1 for sections that
-    leave the recording site (soma or root node).
+    Arrays run over the N sections unless stated. Sections are numbered so that each level (the
+    sections at the same number of sections from the recording site) is one contiguous block and
+    every parent comes before its children. Walks over it go through :mod:`somaward.topology`.
+
+    Attributes
+    ----------
+    branch_ids : tuple of str
+        The branch table's ids, in its order (a branch index is a position here).
+    branch_of : ndarray of int
+        Branch index of each section.
+    parent : ndarray of int
+        Parent section of each section; −1 for a section leaving the recording site (the soma, or
+        the root node without one).
+    length_um, diameter_um : ndarray
+        Length ℓ and diameter d of each section (µm).
+    lambda_um : ndarray
+        DC space constant λ of each section (µm).
+    g_inf_uS : ndarray
+        1/R∞ of each section (µS), the scale of its characteristic admittance.
+    electrotonic_length : ndarray
+        L = ℓ/λ of each section (dimensionless).
+    start_um : ndarray
+        Distance of the section's proximal end from its branch's proximal end (µm).
+    path_start_um : ndarray
+        Path distance of the section's proximal end from the recording site (µm).
+    electrotonic_start : ndarray
+        Electrotonic distance X of the section's proximal end from the recording site
+        (dimensionless).
+    end_code : ndarray of int
+        :data:`END_CODES` of each section's distal end (0, "internal", except at terminals).
+    end_g_uS, end_c_nF : ndarray
+        Conductance (µS) and capacitance (nF) of a lumped load at a terminal; 0 elsewhere.
+    levels : tuple of (int, int)
+        (start, stop) section indices of each level, from the recording site outwards.
+    branch_sections : tuple of (int, int)
+        (first, last) section of each branch, proximal and distal.
+    terminal_branch : ndarray of bool
+        Whether each branch has no child branch.
+    branch_parent : ndarray of int
+        Parent branch index of each branch; −1 for a stem.
+    tau_ms : float
+        Membrane time constant τm = Rm·Cm of the dendrites (ms).
+    soma_g_uS, soma_c_nF : float
+        Conductance (µS) and capacitance (nF) of the soma's own membrane; 0 without a soma.
+    has_soma : bool
+        Whether the recording site is a soma (else the root node).
     """
 
     branch_ids: tuple
-    branch_of: np.ndarray          # section -> branch index
-    parent: np.ndarray             # section -> parent section (−1: the recording site)
+    branch_of: np.ndarray
+    parent: np.ndarray
     length_um: np.ndarray
     diameter_um: np.ndarray
     lambda_um: np.ndarray
-    g_inf_uS: np.ndarray           # 1/R∞ of each section
+    g_inf_uS: np.ndarray
     electrotonic_length: np.ndarray
-    start_um: np.ndarray           # distance of the section's proximal end from its branch's start
-    path_start_um: np.ndarray      # path distance of the proximal end from the recording site
-    electrotonic_start: np.ndarray  # electrotonic distance X of the proximal end from the recording site
-    end_code: np.ndarray           # END_CODES, terminal sections only
+    start_um: np.ndarray
+    path_start_um: np.ndarray
+    electrotonic_start: np.ndarray
+    end_code: np.ndarray
     end_g_uS: np.ndarray
     end_c_nF: np.ndarray
-    levels: tuple                  # (start, stop) of each level
-    branch_sections: tuple         # branch index -> (first, last) section index
-    terminal_branch: np.ndarray    # bool per branch
-    branch_parent: np.ndarray      # branch index -> parent branch index (−1 at the site)
+    levels: tuple
+    branch_sections: tuple
+    terminal_branch: np.ndarray
+    branch_parent: np.ndarray
     tau_ms: float
-    soma_g_uS: float               # 0 without a soma
+    soma_g_uS: float
     soma_c_nF: float
     has_soma: bool
 
@@ -125,16 +169,36 @@ def _section_rows(branches):
 
 
 def build_tree(branches, membrane, soma=None):
-    """Sections in level order from a validated branch table.
+    """The sections of a validated branch table, in level order, with their cable constants.
+
+    Each branch is a chain of uniform cylinders (one, or its ``cylinders``); each becomes a
+    section with λ = √(Rm·d/(4Ri)) and R∞ = (2/π)√(Rm·Ri)·d^(−3/2) (Rall 1959; Rall 1977). The
+    membrane is passive and uniform over the dendrites; the soma is an isopotential sphere of
+    area πD².
 
     Parameters
     ----------
     branches : list of dict
-        Validated branches (``id``, ``parent``, ``length``/``diameter`` or ``sections``, ``end``).
+        Validated branches (``id``, ``parent``, ``length``/``diameter`` in µm or ``cylinders``,
+        ``end`` at terminals), as :func:`somaward.scenario.validate` returns them.
     membrane : dict
         ``Rm`` (Ω·cm²), ``Ri`` (Ω·cm), ``Cm`` (µF/cm²), uniform over the tree.
-    soma : dict or None
-        ``diameter`` (µm) and optional own ``Rm`` (Ω·cm²) of an isopotential spherical soma.
+    soma : dict or None, default None
+        ``diameter`` (µm) and optional own ``Rm`` (Ω·cm²) of an isopotential spherical soma; None
+        for no soma.
+
+    Returns
+    -------
+    Tree
+
+    Examples
+    --------
+    One sealed cylinder of the C2 cable, 500 µm long:
+
+    >>> t = build_tree([{"id": "c", "parent": None, "length": 500.0, "diameter": 1.0, "end": "sealed"}],
+    ...                {"Rm": 20000.0, "Ri": 200.0, "Cm": 1.0})
+    >>> float(t.lambda_um[0]), float(t.electrotonic_length[0]), t.tau_ms
+    (500.0, 1.0, 20.0)
     """
     rm_ohm_cm2, ri_ohm_cm = float(membrane["Rm"]), float(membrane["Ri"])
     cm_uF_cm2 = float(membrane["Cm"])
@@ -240,11 +304,29 @@ class TreeSolution:
 
 
 def solve_tree(tree, s_per_ms, path=None):
-    """Run the up and down passes of ``tree`` at Laplace variables ``s_per_ms`` (1/ms).
+    """Run the up and down passes of ``tree`` at the Laplace variables ``s_per_ms``.
 
-    ``s_per_ms`` real (e.g. ``[0.0]``) gives real arithmetic; complex ``s = iω`` the frequency
-    response. ``path``: section indices from the recording site outwards (e.g. to a synapse);
-    when given, the down pass runs along them only, and only points on that path may be evaluated.
+    Up pass (leaves → root): Rall 1959's recursion of input admittances in the bounded form of
+    :mod:`somaward.cable`. Down pass (root → leaves): the admittance looking back towards the
+    root, and the sums of log voltage ratios D (current at the root) and U (current at each
+    distal node) along the ancestors (module docstring). Exact for passive uniform cylinders; O(N)
+    per Laplace variable, vectorised over each level and over ``s_per_ms``.
+
+    Parameters
+    ----------
+    tree : Tree
+        From :func:`build_tree`.
+    s_per_ms : array_like
+        Laplace variables s (1/ms): real (e.g. ``[0.0]``) for real arithmetic, ``s = iω`` for the
+        frequency response (:func:`somaward.frequency.laplace_of_hz`).
+    path : sequence of int, optional
+        Section indices from the recording site outwards (e.g. to a synapse,
+        :func:`somaward.topology.section_path`); the down pass then runs along them only, and only
+        points on that path may be evaluated. Default: every section.
+
+    Returns
+    -------
+    TreeSolution
     """
     s = np.atleast_1d(np.asarray(s_per_ms))
     k = np.sqrt(1.0 + s * tree.tau_ms)
