@@ -63,6 +63,12 @@ def test_every_definition_is_used_by_some_report():
     for sc in (DEMO, NO_SOMA, ONE):
         for path in leaves(somaward.solve(sc)):
             used.add(q.quantity(path).key)
+            while re.search(r"[.\[]", path):                # and the groups that hold it (table titles)
+                path = re.sub(r"(\[\d+\]|\.[^.\[]*)$", "", path)
+                try:
+                    used.add(q.quantity(path).key)
+                except KeyError:
+                    pass
     assert sorted(set(q.QUANTITIES) - used) == []
 
 
@@ -158,3 +164,22 @@ def test_a_branch_id_is_text_not_markup():
     assert q.label("lambda_um.*", item=bid) == f"Space constant λ of branch {bid}"
     assert q.label("lambda_um.*", form="html", item=bid).endswith("a_[x]^[y]&amp;&lt;b&gt;{rec}")
     assert q.label("lambda_um.*", form="latex", item=bid).endswith(r"a\_[x]\textasciicircum{}[y]\&<b>\{rec\}")
+
+
+def test_plain_messages_count_branches_from_1_and_name_the_whole_scenario():
+    sc = json.loads(json.dumps(NO_SOMA))
+    sc["branches"][2]["id"] = "left"
+    with pytest.raises(somaward.ScenarioError) as err:
+        somaward.solve(sc)
+    assert err.value.path == "branches[2].id"
+    assert err.value.plain == "Branch id: 'left' is already the id of branch 2"
+    with pytest.raises(somaward.ScenarioError) as err:
+        somaward.solve([1, 2])
+    assert err.value.plain.startswith("this is not a scenario")
+
+
+def test_input_fields_carry_the_engine_defaults():
+    fields = q.input_fields()
+    assert fields["equivalent_cylinder.tolerance"]["default"] == 0.05
+    assert fields["membrane.Cm"]["default"] == 1.0 and fields["membrane.Rm"]["default"] is None
+    assert "^" not in fields["equivalent_cylinder.tolerance"]["description"].replace("^3/2", "")

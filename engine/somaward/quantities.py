@@ -289,6 +289,14 @@ _LIST = [
     _q(f"{_CMP}.note", "Note on the comparison", "", "How the full tree and the cylinder are compared."),
     _q(f"{_CMP}.not_given_by_cylinder.note", "Why the cylinder does not give these", "",
        "A point on the cylinder stands for the same input spread over every branch at that X."),
+    _q(f"{_EQ}.terminals", "Terminals: electrotonic distance X of each end", "",
+       "One row per terminal branch: its X from the {rec}, its departure from L and its end condition."),
+    _q(f"{_EQ}.cylinder", "The equivalent cylinder", "",
+       "The one cylinder that stands for the whole tree (Rall 1962; Rall 1964)."),
+    _q(_CMP, "Full tree and equivalent cylinder at the synapse", "",
+       "The full tree's values beside the cylinder's at the synapse's X, at 0 Hz."),
+    _q(f"{_CMP}.not_given_by_cylinder", "From the full tree only", "",
+       "Values at the synapse that the cylinder does not give, taken from the full tree."),
     _q(f"{_EQ}.branch_points", "3/2 power rule at each branch point", "",
        "One row per branch point (Rall 1962)."),
     _q(f"{_EQ}.cylinder_joins", "Diameter steps inside a branch", "",
@@ -404,9 +412,9 @@ TABLES = {
     },
     "constants": {
         "caption": "Cable constants, resistances and delays",
-        "keys": ["site.branch", "site.distance_um", "site.path_distance_um", "site.electrotonic_distance",
-                 "site.lambda_um", "site.branch_electrotonic_length", "tau_m_ms", "soma_input_resistance_Mohm",
-                 "site_input_resistance_Mohm", "transfer_resistance_Mohm", "rho", "rho_inf", "centroid_delay_ms"],
+        "keys": ["site.branch", "site.distance_um", "site.cylinder", "site.path_distance_um",
+                 "site.electrotonic_distance", "site.lambda_um", "site.branch_electrotonic_length", "tau_m_ms",
+                 "soma_input_resistance_Mohm", "site_input_resistance_Mohm", "transfer_resistance_Mohm", "rho", "rho_inf", "centroid_delay_ms"],
     },
     "equivalent_cylinder": {
         "caption": "Equivalent cylinder (Rall 1962; Rall 1964)",
@@ -751,12 +759,13 @@ def input_fields(recording_site="soma"):
     -------
     dict
         Canonical path (``membrane.Ri``, ``branches[].cylinders[].diameter``) →
-        ``{label, label_html, unit, description}``.
+        ``{label, label_html, unit, description, default}`` (``default`` None where the engine
+        fills in none).
     """
     from .schema_check import schema_fields
     return {path: {"label": render_markup(field["label"], "plain", recording_site),
                    "label_html": render_markup(field["label"], "html", recording_site),
-                   "unit": field["unit"], "description": field["description"]}
+                   "unit": field["unit"], "description": field["description"], "default": field["default"]}
             for path, field in schema_fields().items()}
 
 

@@ -52,12 +52,12 @@ def rename_old_keys(scenario):
     for i, b in enumerate(branches):
         if isinstance(b, dict) and "sections" in b and "cylinders" not in b:
             b = {("cylinders" if k == "sections" else k): v for k, v in b.items()}
-            renamed.append(f"branches[{i}]")
+            renamed.append(f"branch {describe(b['id'])}" if isinstance(b.get("id"), str) else f"branch {i + 1}")
         new.append(b)
     if not renamed:
         return scenario, []
     more = f" and {len(renamed) - 3} more" if len(renamed) > 3 else ""
-    warning = (f"{', '.join(renamed[:3])}{more}: the old key 'sections' was read as 'cylinders', its new "
+    warning = (f"The old key 'sections' of {', '.join(renamed[:3])}{more} was read as 'cylinders', its new "
                "name (a branch is a chain of uniform cylinders); save the scenario again to update the file.")
     return {**scenario, "branches": new}, [warning]
 
@@ -127,7 +127,9 @@ def _check_ids(branches):
     index = {}
     for i, b in enumerate(branches):
         if b["id"] in index:
-            raise ScenarioError(f"branches[{i}].id", f"duplicate id {b['id']!r} (also branches[{index[b['id']]}])")
+            j = index[b["id"]]
+            raise ScenarioError(f"branches[{i}].id", f"duplicate id {b['id']!r} (also branches[{j}])",
+                                f"{b['id']!r} is already the id of branch {j + 1}")
         index[b["id"]] = i
     return index
 

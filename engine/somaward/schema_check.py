@@ -64,7 +64,8 @@ def _fields():
         node = resolve(node)
         if "x-label" in node:
             entry = out.setdefault(path, {})
-            for key, name in (("x-label", "label"), ("x-unit", "unit"), ("description", "description")):
+            for key, name in (("x-label", "label"), ("x-unit", "unit"), ("description", "description"),
+                              ("default", "default")):
                 if key in node:
                     entry.setdefault(name, node[key])
         if node.get("type") == "array" and "items" in node:
@@ -78,12 +79,14 @@ def _fields():
             walk(alt, path)
 
     walk(root, "")
-    return {k: {"label": v["label"], "unit": v.get("unit", ""), "description": v.get("description", "")}
+    return {k: {"label": v["label"], "unit": v.get("unit", ""), "description": v.get("description", ""),
+                "default": v.get("default")}
             for k, v in out.items()}
 
 
 def schema_fields():
-    """Every labelled scenario field: canonical path → ``{label, unit, description}``.
+    """Every labelled scenario field: canonical path → ``{label, unit, description, default}``
+    (``default`` None where the schema gives none).
 
     Paths use ``[]`` for list items (``branches[].cylinders[].diameter``); labels are in the
     markup of :mod:`somaward.quantities`. The schema is their one source.
@@ -630,5 +633,6 @@ def check(value, schema=None):
     """
     schema = _cached_schema() if schema is None else schema
     if not isinstance(value, dict):
-        raise ScenarioError("scenario", f"must be a JSON object, got {describe(value)}")
+        raise ScenarioError("scenario", f"must be a JSON object, got {describe(value)}",
+                            "this is not a scenario: expected a JSON object with membrane, branches and synapse")
     return _Checker(schema).check(value, schema, "")
