@@ -414,7 +414,8 @@ TABLES = {
         "caption": "Cable constants, resistances and delays",
         "keys": ["site.branch", "site.distance_um", "site.cylinder", "site.path_distance_um",
                  "site.electrotonic_distance", "site.lambda_um", "site.branch_electrotonic_length", "tau_m_ms",
-                 "soma_input_resistance_Mohm", "site_input_resistance_Mohm", "transfer_resistance_Mohm", "rho", "rho_inf", "centroid_delay_ms"],
+                 "soma_input_resistance_Mohm", "site_input_resistance_Mohm", "transfer_resistance_Mohm", "rho",
+                 "rho_inf", "centroid_delay_ms"],
     },
     "equivalent_cylinder": {
         "caption": "Equivalent cylinder (Rall 1962; Rall 1964)",
