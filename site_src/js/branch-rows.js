@@ -23,6 +23,13 @@ export function isTerminal(branches, i) {
   return !branches.some((b, j) => j !== i && b.parent === id);
 }
 
+// isTerminal for every row at once, in one pass (a big table would take n² with isTerminal).
+export function terminalFlags(branches) {
+  const naming = new Map();   // id → rows naming it as their parent
+  for (const b of branches) naming.set(b.parent, (naming.get(b.parent) ?? 0) + 1);
+  return branches.map((b) => (naming.get(b.id) ?? 0) - (b.parent === b.id ? 1 : 0) === 0);
+}
+
 function endFor(branch) {
   if (branch.end !== "load") return branch.end;
   return numbers({ G: branch.G, C: branch.C });
@@ -31,18 +38,15 @@ function endFor(branch) {
 // The scenario the table stands for: branches in table order (so the engine's
 // branches[i] is the table's i-th branch), `end` on every terminal branch.
 export function scenarioFromState(state) {
-  // isTerminal's rule (no other row names it as parent) in one pass: rows naming each id.
-  const naming = new Map();
-  for (const b of state.branches) naming.set(b.parent, (naming.get(b.parent) ?? 0) + 1);
-  const terminal = (b) => (naming.get(b.id) ?? 0) - (b.parent === b.id ? 1 : 0) === 0;
-  const branches = state.branches.map((b) => {
+  const terminal = terminalFlags(state.branches);
+  const branches = state.branches.map((b, i) => {
     const out = { id: b.id, parent: b.parent === "" ? null : b.parent };
     if (b.cylinders.length === 1) {
       Object.assign(out, numbers({ length: b.cylinders[0].length, diameter: b.cylinders[0].diameter }));
     } else {
       out.cylinders = b.cylinders.map((s) => numbers({ length: s.length, diameter: s.diameter }));
     }
-    if (terminal(b)) out.end = endFor(b);
+    if (terminal[i]) out.end = endFor(b);
     return out;
   });
   const c = state.carried || {};

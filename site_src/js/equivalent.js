@@ -183,7 +183,9 @@ function drawPlot(holder, vocab, report, available) {
   if (cmp.soma_to_site.cylinder !== null) syn.push({ x: cmp.electrotonic_distance, y: cmp.soma_to_site.cylinder, symbol: "diamond" });
   // The y axis starts at the tenth below the lowest value drawn, so that the gap between tree and
   // cylinder can be seen; it always ends at 1.
-  const lowest = Math.min(1, ...tree.map((d) => d.y), ...cyl.map((d) => d.y), ...syn.map((d) => d.y));
+  // (a loop, not Math.min(...points): a big tree's map has more points than a call takes arguments)
+  let lowest = 1;
+  for (const list of [tree, cyl, syn]) for (const d of list) lowest = Math.min(lowest, d.y);
   const w = Math.max(280, Math.min(720, available || holder.clientWidth || 560));
   const qx = definitionOf(vocab, "terms.electrotonic_distance"), qy = definitionOf(vocab, TREE_KEY);
   const xName = plainText(qx.label_html), yName = plainText(qy.label_html);

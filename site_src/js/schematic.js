@@ -24,8 +24,14 @@ function cylindersOf(b) {
   return list.map((s) => ({ length: num(s?.length), diameter: num(s?.diameter) }));
 }
 
-// x of each branch's start and end (path distance), y slot of each branch.
+const lengthOf = (b) => cylindersOf(b).reduce((a, s) => a + s.length, 0);
+
+// x of each branch's start (path distance), y slot of each branch. Iterative (an explicit stack,
+// depth-first, children in table order, each leaf the next slot and a branch point midway
+// between its children's slots), so that a chain thousands of branches deep lays out like any
+// other tree; O(branches).
 function layout(branches) {
+  const n = branches.length;
   const index = new Map();
   branches.forEach((b, i) => { if (!index.has(b.id)) index.set(b.id, i); });
   const children = branches.map(() => []);
@@ -35,18 +41,41 @@ function layout(branches) {
     if (p === undefined || p === i) roots.push(i);
     else children[p].push(i);
   });
-  const start = new Array(branches.length).fill(0);
-  const y = new Array(branches.length).fill(0);
-  const seen = new Set();
+  const start = new Array(n).fill(0);
+  const y = new Array(n).fill(0);
+  const seen = new Uint8Array(n);
   let slot = 0;
-  const place = (i, x0) => {
-    if (seen.has(i)) return y[i];
-    seen.add(i);
-    start[i] = x0;
-    const x1 = x0 + cylindersOf(branches[i]).reduce((a, s) => a + s.length, 0);
-    const ys = children[i].map((c) => place(c, x1));
-    y[i] = ys.length ? (Math.min(...ys) + Math.max(...ys)) / 2 : slot++;
-    return y[i];
+  const place = (root, x0) => {
+    if (seen[root]) return;
+    seen[root] = 1;
+    start[root] = x0;
+    const stack = [root];
+    const next = [0];            // per stacked branch: its next child to visit
+    while (stack.length) {
+      const top = stack.length - 1;
+      const i = stack[top];
+      if (next[top] < children[i].length) {
+        const c = children[i][next[top]++];
+        if (seen[c]) continue;   // reached twice (a loop of parents): keep its first place
+        seen[c] = 1;
+        start[c] = start[i] + lengthOf(branches[i]);
+        stack.push(c);
+        next.push(0);
+        continue;
+      }
+      stack.pop();
+      next.pop();
+      if (!children[i].length) {
+        y[i] = slot++;
+        continue;
+      }
+      let lo = Infinity, hi = -Infinity;
+      for (const c of children[i]) {
+        lo = Math.min(lo, y[c]);
+        hi = Math.max(hi, y[c]);
+      }
+      y[i] = (lo + hi) / 2;
+    }
   };
   roots.forEach((r) => place(r, 0));
   branches.forEach((_, i) => place(i, 0));  // anything left over (a loop of parents)
@@ -59,8 +88,8 @@ function synapsePoint(scenario, lay) {
   if (syn.path !== undefined) {
     let i = lay.index.get(syn.path);
     const d = num(syn.path_distance);
-    while (i !== undefined) {
-      const len = cylindersOf(bs[i]).reduce((a, s) => a + s.length, 0);
+    for (let steps = 0; i !== undefined && steps <= bs.length; steps++) {   // a loop of parents ends too
+      const len = lengthOf(bs[i]);
       if (d >= lay.start[i] || bs[i].parent === null) return { i, x: Math.min(d, lay.start[i] + len) };
       i = lay.index.get(bs[i].parent);
     }
@@ -70,11 +99,12 @@ function synapsePoint(scenario, lay) {
   return i === undefined ? null : { i, x: lay.start[i] + num(syn.distance) };
 }
 
-export function drawSchematic(container, scenario) {
-  const bs = scenario.branches || [];
+// The drawing of a scenario's branches as a detached SVG element (nothing on the page changes).
+export function schematicSVG(scenario) {
+  const bs = Array.isArray(scenario.branches) ? scenario.branches : [];
   const lay = layout(bs);
-  const ends = bs.map((b, i) => lay.start[i] + cylindersOf(b).reduce((a, s) => a + s.length, 0));
-  const total = Math.max(1, ...ends);
+  const ends = bs.map((b, i) => lay.start[i] + lengthOf(b));
+  const total = ends.reduce((a, e) => Math.max(a, e), 1);
   const W = 460, left = 34, right = 86, rowH = 22, top = 16;
   const H = top * 2 + lay.slots * rowH + 18;
   const sx = (x) => left + (x / total) * (W - left - right);
@@ -118,6 +148,11 @@ export function drawSchematic(container, scenario) {
   const unit = svgEl("tspan", { "data-unit-for": LENGTH_KEY }, definitionOf(null, LENGTH_KEY).unit);
   scale.append(number, " ", unit);
   svg.append(scale);
+  return svg;
+}
+
+// Draw the typed table into `container` (no stamp); `svg`: a drawing made beforehand.
+export function drawSchematic(container, scenario, svg = schematicSVG(scenario)) {
   container.replaceChildren(svg);
   stampFigure(container.closest("figure"), null);
 }
