@@ -28,7 +28,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from . import cable
+from . import cable, runs
 from .membrane import input_resistance_infinite_Mohm, membrane_time_constant_ms, space_constant_um
 from .topology import children as children_of, roots
 
@@ -303,14 +303,16 @@ class TreeSolution:
     y_soma_uS: np.ndarray
 
 
-def solve_tree(tree, s_per_ms, path=None):
+def solve_tree(tree, s_per_ms, path=None, reference=False):
     """Run the up and down passes of ``tree`` at the Laplace variables ``s_per_ms``.
 
     Up pass (leaves → root): Rall 1959's recursion of input admittances in the bounded form of
     :mod:`somaward.cable`. Down pass (root → leaves): the admittance looking back towards the
     root, and the sums of log voltage ratios D (current at the root) and U (current at each
-    distal node) along the ancestors (module docstring). Exact for passive uniform cylinders; O(N)
-    per Laplace variable, vectorised over each level and over ``s_per_ms``.
+    distal node) along the ancestors (module docstring). Exact for passive uniform cylinders.
+    Each unbranched run of sections is one composed two-port (:mod:`somaward.runs`), so the
+    sequential numpy steps follow the branching depth plus log₂ of the longest run; vectorised
+    over sections and ``s_per_ms``.
 
     Parameters
     ----------
@@ -323,6 +325,9 @@ def solve_tree(tree, s_per_ms, path=None):
         Section indices from the recording site outwards (e.g. to a synapse,
         :func:`somaward.topology.section_path`); the down pass then runs along them only, and only
         points on that path may be evaluated. Default: every section.
+    reference : bool, default False
+        Run the passes one level of sections at a time instead (one numpy step per level: slow
+        on long chains; kept as the tests' reference for the composed passes).
 
     Returns
     -------
@@ -333,11 +338,19 @@ def solve_tree(tree, s_per_ms, path=None):
     y0 = tree.g_inf_uS[:, None] * k[None, :]
     kappa = tree.electrotonic_length[:, None] * k[None, :]
     m = np.expm1(-2.0 * kappa)
-    up = _up_pass(tree, s, y0, m)
+    if reference:
+        up = _up_pass(tree, s, y0, m)
+    else:
+        up = runs.up_pass(tree.parent, _terminal_loads(tree, s, y0), y0, m)
     y_soma = (tree.soma_g_uS + s * tree.soma_c_nF) * np.ones_like(k)
     y_root = y_soma + up["yload_uS"][-1]
-    levels = tree.levels if path is None else tuple((int(i), int(i) + 1) for i in path)
-    down = _down_pass(tree, levels, y0, kappa, m, up, y_root)
+    if reference:
+        levels = tree.levels if path is None else tuple((int(i), int(i) + 1) for i in path)
+        down = _down_pass(tree, levels, y0, kappa, m, up, y_root)
+    else:
+        sel = np.arange(tree.n_sections) if path is None else np.asarray(path, dtype=np.intp)
+        yup = runs.down_admittances(tree.parent, sel, y0, m, up, y_root)
+        down = _down_logs(tree, sel, path is None, y0, kappa, m, up, yup)
     return TreeSolution(tree=tree, s_per_ms=s, propagation=k, y0_uS=y0, round_trip_m1=m, y_root_uS=y_root,
                         y_soma_uS=y_soma, **up, **down)
 
@@ -386,6 +399,22 @@ def _down_pass(tree, levels, y0, kappa, m, up, y_root):
             gup[lo:hi], opu[lo:hi], omu[lo:hi] = g, op, om
             node_y[lo:hi] = cable.through_admittance(y0[lo:hi], g, om, op, m[lo:hi]) + yload[lo:hi]
     sel = np.concatenate([np.arange(lo, hi) for lo, hi in levels]) if levels is not tree.levels else slice(None)
+    zero = np.zeros_like(m[sel])
+    own_d = cable.log_voltage_ratio(kappa[sel], gam[sel], opg[sel], zero, m[sel])
+    own_u = cable.log_voltage_ratio(kappa[sel], gup[sel], opu[sel], zero, m[sel])
+    down_log, up_log = np.empty_like(y0), np.empty_like(y0)
+    down_log[sel], up_log[sel] = _ancestor_sums(tree.parent, sel, own_d, own_u)
+    return {"gamma_proximal": gup, "one_plus_gamma_proximal": opu, "one_minus_gamma_proximal": omu,
+            "down_log": down_log, "up_log": up_log}
+
+
+def _down_logs(tree, sel, whole, y0, kappa, m, up, yup):
+    """Γ' of the loads Yup at the sections ``sel``, then the ln-ratio sums D and U along the ancestors."""
+    gam, opg = up["gamma_distal"], up["one_plus_gamma_distal"]
+    gup, opu, omu = (np.empty_like(y0) for _ in range(3))
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        gup[sel], opu[sel], omu[sel] = cable.reflection(y0[sel], yup)
+    sel = slice(None) if whole else sel
     zero = np.zeros_like(m[sel])
     own_d = cable.log_voltage_ratio(kappa[sel], gam[sel], opg[sel], zero, m[sel])
     own_u = cable.log_voltage_ratio(kappa[sel], gup[sel], opu[sel], zero, m[sel])
