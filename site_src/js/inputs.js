@@ -1,14 +1,20 @@
 // Which input the page computes from (the quick cable or the branch table), and keeping that
-// input: autosave, the link in the URL fragment, scenario files, the demo. Links and files are
-// checked by the engine (somaward.validate) before they replace anything; a bad one is named
-// and the saved work stays as it was.
+// input: autosave, the link in the URL fragment, scenario files, the demo.
+// A link or a file replaces the inputs only whole: it is unpacked or read within keep.LIMITS,
+// read and checked by the engine (somaward_page.read_input: JSON limits, the table's number of
+// branches, somaward.validate), and laid out off the page (the branch table's rows and the
+// schematic) before anything changes. Any failure is named in a plain sentence and changes
+// nothing: not the inputs, not the results, not the autosave. A replacement keeps the work it
+// replaced one click away ("Back to my previous work"), across reloads too.
 import { readForm, scenarioFromValues } from "./quick-cable.js";
-import { TreeTable } from "./tree-table.js";
+import { MAX_BRANCHES, TreeTable } from "./tree-table.js";
 import { plainWords } from "./fields.js";
 import { copyText } from "./clipboard.js";
 import * as keep from "./keep.js";
 
 const SAVE_DELAY_MS = 400;
+// history.state of a URL whose fragment the autosave wrote (a link typed or followed has none).
+const AUTOSAVE_STATE = "autosave";
 const $ = (sel) => document.querySelector(sel);
 
 // The quick form holds one stem branch without tapers, the synapse on it, and nothing else the
@@ -40,11 +46,19 @@ function quickAdapter(form) {
   };
 }
 
-// An engine error about a scenario read from a link or a file: the plain words, and where in the
-// file (its JSON path, as `somaward report` names it).
-function fileError(err) {
-  if (err.type !== "ScenarioError") return err.message;
-  return err.path ? `${plainWords(err)} (at ${err.path} in the file)` : plainWords(err);
+// Why a link or a file was not taken, in plain words: the page's own (keep.InputError), the
+// engine's (a field's plain message and where in the input, its JSON path as `somaward report`
+// names it), or, for anything unforeseen, a sentence saying what a person can do (the details
+// go to the console, never onto the page).
+const UNFORESEEN = "the page could not read it (a fault of the page, not necessarily of the input); reload the page " +
+  "and try again, or compute it on the command line: somaward report FILE";
+
+function refusal(err, where) {
+  if (err instanceof keep.InputError) return err.message;
+  if (err?.type === "ScenarioError") return err.path ? `${plainWords(err)} (at ${err.path} in ${where})` : plainWords(err);
+  console.error(err);
+  if (err?.plain) return err.plain.replace(/\.$/, "");
+  return UNFORESEEN;
 }
 
 export class Inputs {
@@ -61,9 +75,16 @@ export class Inputs {
     this.demo = JSON.parse($("#demo-scenario").textContent);
     this.timer = null;
     this.saves = 0;
+    this.refused = null;   // the text of a link too large for the table, offered as a file
+    this.opened = false;   // the inputs are a link, file or demo as opened, not edited since
     this.forms = [this.quick.form, this.tree.form, this.modeForm];
     this.tree.load(this.demo);
-    for (const f of this.forms) f.addEventListener("input", () => this.scheduleSave());
+    for (const f of this.forms) {
+      f.addEventListener("input", () => {
+        this.opened = false;
+        this.scheduleSave();
+      });
+    }
     this.modeForm.addEventListener("input", () => this.setMode(this.modeForm.querySelector("input[name=mode]:checked").value));
     this.wireTools();
     window.addEventListener("hashchange", () => this.openLink(location.hash, true));
@@ -91,11 +112,17 @@ export class Inputs {
     return this.decorate(this.current().scenario());
   }
 
-  apply(snapshot) {
-    const mode = snapshot.mode === "quick" && this.quick.fits(snapshot.scenario) ? "quick" : "tree";
-    (mode === "quick" ? this.quick : this.tree).load(snapshot.scenario);
-    this.fill(snapshot.scenario);
-    this.setMode(mode);
+  // A snapshot → what the page will show, built off the page; throws without changing anything.
+  // `mode`: the input to show it in (a file always opens in the branch table).
+  stage(snapshot, mode = snapshot.mode === "quick" && this.quick.fits(snapshot.scenario) ? "quick" : "tree") {
+    return { mode, scenario: snapshot.scenario, table: mode === "tree" ? this.tree.stage(snapshot.scenario) : null };
+  }
+
+  commit(staged) {
+    if (staged.table) this.tree.commit(staged.table);
+    else this.quick.load(staged.scenario);
+    this.fill(staged.scenario);
+    this.setMode(staged.mode);
   }
 
   // At start: the saved work (or the demo), then a link in the URL if there is one. The saved
@@ -103,18 +130,23 @@ export class Inputs {
   // (somaward's rename_old_keys), and the work is shown again if anything was renamed.
   async restore() {
     this.setMode("quick");
+    $("#back-to-previous").hidden = !keep.loadPrevious();
     const saved = keep.loadSaved();
     if (saved) {
       try {
-        this.apply(saved);
+        this.commit(this.stage(saved));
+        this.opened = keep.savedOpened();
         this.status("Your saved inputs are back (kept in this browser).");
-      } catch {
+      } catch (err) {
         this.setMode("quick");
+        this.error(`Your saved work could not be shown: ${refusal(err, "it")}. Save it with “Save that cell's scenario as JSON” ` +
+          "before you change the inputs: a change is saved in its place.");
+        this.offerRefused(JSON.stringify(saved));
       }
       try {
         const up = await this.upgrade(saved.scenario);
         if (up.warnings.length) {
-          this.apply({ mode: saved.mode, scenario: up.scenario });
+          this.commit(this.stage({ mode: saved.mode, scenario: up.scenario }));
           this.status("Your saved inputs are back (kept in this browser). ", up.warnings);
         }
       } catch {
@@ -144,38 +176,81 @@ export class Inputs {
 
   error(text) {
     $("#keep-error").textContent = text;
+    if (!text) this.offerRefused(null);
   }
 
-  async validated(scenario) {
-    const { value } = await this.client.call("validate", scenario);
+  // A link too large for the table can still be saved as a file for the command line.
+  offerRefused(text) {
+    this.refused = text;
+    $("#save-refused").hidden = text === null;
+  }
+
+  // Text of a scenario file or of a link → {mode, scenario, warnings}, read and checked by the engine.
+  async read(text, name, kind) {
+    const { value } = await this.client.call("read_input", text, name, kind, MAX_BRANCHES);
     return value;
   }
 
   async openLink(hash, recompute) {
-    let snap, up;
+    let text, read, staged;
     try {
-      snap = await keep.decodeFragment(hash);
       if (this.lastFragment === hash.replace(/^#/, "")) return;
-      up = await this.upgrade(snap.scenario);
-      await this.validated(up.scenario);
-      this.apply({ mode: snap.mode, scenario: up.scenario });
+      // The page's own link to the saved work (a reload; the link may lag the last save by the
+      // time it takes to pack), or a link that holds exactly the saved work: nothing to replace,
+      // and the previous version stays as it is.
+      const saved = keep.loadSaved();
+      const own = () => {
+        this.lastFragment = hash.replace(/^#/, "");
+        document.body.dataset.link = "saved";
+      };
+      if (saved && history.state?.somaward === AUTOSAVE_STATE) return own();
+      text = await keep.unpackFragment(hash);
+      if (saved && text === JSON.stringify(saved)) return own();
+      read = await this.read(text, "the link", "link");
+      staged = this.stage(read);
     } catch (err) {
-      this.error(`This link could not be opened: ${fileError(err).replace(/ in the file\)$/, " in the link)")}. ` +
+      this.error(`This link could not be opened: ${refusal(err, "the link")}. ` +
         "The inputs shown are your saved work (or the demo), unchanged; nothing was overwritten.");
+      this.offerRefused(err?.type === "TooLarge" || err?.kind === "too-many" ? text : null);
       document.body.dataset.link = "bad";
       return;
     }
+    this.replaceWith(staged, "Opened the inputs from the link.", { notes: read.warnings });
     document.body.dataset.link = "opened";
-    this.error("");
-    this.replaceSaved("Opened the inputs from the link.", up.warnings);
     if (recompute) this.compute();
   }
 
-  // The inputs were replaced wholesale: save them, keeping the previous save one click away.
-  replaceSaved(words, notes = []) {
-    const had = keep.keepPrevious();
-    $("#back-to-previous").hidden = !had;
-    this.status(words + (had ? " Your previous work is kept: “Back to my previous work” returns to it." : ""), notes);
+  async openFile(file) {
+    const name = keep.oneLine(file.name);
+    let read, staged;
+    try {
+      const text = await keep.readFile(file);
+      read = await this.read(text, name, "file");
+      staged = this.stage(read, "tree");
+    } catch (err) {
+      this.error(`Not opened: ${name}: ${refusal(err, "the file")}. Your inputs and your saved work are unchanged.`);
+      document.body.dataset.imported = "bad";
+      return;
+    }
+    this.replaceWith(staged, `Opened ${name}.`, { notes: read.warnings });
+    document.body.dataset.imported = "ok";
+    this.compute();
+  }
+
+  // The inputs are replaced wholesale by a staged snapshot: what they held becomes the previous
+  // version, then the new inputs are saved. `outside`: the new inputs come from a link, a file or
+  // the demo; replacing such inputs before they were edited keeps the previous version as it
+  // was (opening two files in a row leaves the person's own work one click away, not the first file).
+  replaceWith(staged, words, { notes = [], outside = true,
+    kept = " Your previous work is kept: “Back to my previous work” returns to it." } = {}) {
+    const work = (keep.hasSaved() || this.saves > 0) && !(outside && this.opened);
+    if (work) keep.savePrevious(this.snapshot());
+    this.commit(staged);
+    this.opened = outside;
+    this.error("");
+    const previous = Boolean(keep.loadPrevious());
+    $("#back-to-previous").hidden = !previous;
+    this.status(words + (previous ? kept : ""), notes);
     this.saveNow();
   }
 
@@ -187,37 +262,16 @@ export class Inputs {
   async saveNow() {
     clearTimeout(this.timer);
     const snap = this.snapshot();
-    const ok = keep.save(snap);
+    const ok = keep.save(snap, undefined, this.opened);
     try {
       const fragment = await keep.encodeFragment(snap);
       this.lastFragment = fragment;
-      history.replaceState(null, "", `${location.pathname}${location.search}#${fragment}`);
+      history.replaceState({ somaward: AUTOSAVE_STATE }, "", `${location.pathname}${location.search}#${fragment}`);
     } catch {
       // no CompressionStream: the link button says so
     }
     document.body.dataset.saved = String(++this.saves);
     if (!ok) this.status("This browser does not let the page save (private mode?); use “Save the scenario as JSON”.");
-  }
-
-  async openFile(file) {
-    let up;
-    try {
-      const scenario = keep.parseFile(file.name, await file.text());
-      up = await this.upgrade(scenario);
-      await this.validated(up.scenario);
-      this.tree.load(up.scenario);
-      this.fill(up.scenario);
-      this.setMode("tree");
-    } catch (err) {
-      this.error(`Not opened: ${err.type === "ScenarioError" ? `${file.name}: ` : ""}${fileError(err)}. ` +
-        "Your inputs and your saved work are unchanged.");
-      document.body.dataset.imported = "bad";
-      return;
-    }
-    this.error("");
-    document.body.dataset.imported = "ok";
-    this.replaceSaved(`Opened ${file.name}.`, up.warnings);
-    this.compute();
   }
 
   wireTools() {
@@ -238,22 +292,31 @@ export class Inputs {
       event.target.value = "";
       if (file) this.openFile(file);
     });
+    $("#save-refused").addEventListener("click", () => {
+      if (this.refused === null) return;
+      try {
+        keep.downloadJSON(JSON.parse(this.refused).scenario, "somaward-link-scenario.json");
+      } catch (err) {
+        console.error(err);
+      }
+    });
     $("#back-to-demo").addEventListener("click", () => {
-      this.tree.load(this.demo);
-      this.fill(this.demo);
-      this.setMode("tree");
-      this.error("");
-      this.replaceSaved("The invented demo cell is back.");
+      this.replaceWith(this.stage({ mode: "tree", scenario: this.demo }, "tree"), "The invented demo cell is back.");
       this.compute();
     });
+    // The previous work and the inputs it replaces swap places: one more click brings these back.
     $("#back-to-previous").addEventListener("click", () => {
       const prev = keep.loadPrevious();
       if (!prev) return;
-      this.apply(prev);
-      keep.save(prev);
-      this.saveNow();
-      $("#back-to-previous").hidden = true;
-      this.status("Your previous work is back.");
+      let staged;
+      try {
+        staged = this.stage(prev);
+      } catch (err) {
+        this.error(`Your previous work could not be shown: ${refusal(err, "it")}. Your inputs are unchanged.`);
+        return;
+      }
+      this.replaceWith(staged, "Your previous work is back.", { outside: false,
+        kept: " What it replaced is kept in its place: “Back to my previous work” returns to that." });
       this.compute();
     });
     $("#copy-rows").addEventListener("click", async () => {

@@ -1,12 +1,40 @@
 // The branch-table editor: rows of branches (each with one or more cylinders), the synapse,
 // the soma and the membrane. Holds the table state as typed text; branch-rows.js turns it into
 // a scenario. Every user text goes into the page through value / textContent only.
-import { emptyBranch, ENDS, isTerminal, rowsFromTSV, rowsToTSV, scenarioFromState, stateFromScenario } from "./branch-rows.js";
-import { drawSchematic } from "./schematic.js";
+// A scenario is loaded in two steps: stage() builds the new rows and the drawing off the page
+// (and throws, changing nothing, when it cannot), commit() puts them in; so a file or link that
+// fails half-way leaves the table as it was.
+import { emptyBranch, ENDS, rowsFromTSV, rowsToTSV, scenarioFromState, stateFromScenario, terminalFlags } from "./branch-rows.js";
+import { drawSchematic, schematicSVG } from "./schematic.js";
 import { endConditions, inputFields } from "./vocabulary.js";
 import { plainText } from "./render.js";
+import { InputError } from "./keep.js";
 
 const EAGER_PARENT_LISTS = 60;  // branches; above this a parent list is filled when reached
+// The most branches the table takes (each is a row of fields on the page); a larger cell is
+// computed on the command line. Links and files are held to it before the engine checks them.
+export const MAX_BRANCHES = 5000;
+const MANY = MAX_BRANCHES.toLocaleString("en-US");
+
+export function tooManyBranches(n) {
+  return new InputError(`the cell has ${n.toLocaleString("en-US")} branches, too many for the page's branch table, ` +
+    `which holds at most ${MANY}; compute it on the command line: somaward report FILE`, "too-many");
+}
+
+// Ids in table order without repeats, and the terminal ones (the synapse's choices).
+function synapseChoices(branches) {
+  const terminal = terminalFlags(branches);
+  const ids = [...new Set(branches.map((b) => b.id).filter((id) => id !== ""))];
+  const terminals = [...new Set(branches.filter((b, i) => b.id !== "" && terminal[i]).map((b) => b.id))];
+  return { ids, terminals, terminal };
+}
+
+// An empty synapse choice becomes the first one offered (as its list on the page shows it).
+function settleSynapse(state, choices) {
+  const syn = state.synapse;
+  if (syn.branch === "") syn.branch = choices.ids[0] ?? "";
+  if (syn.path === "") syn.path = choices.terminals[0] ?? "";
+}
 
 // A field's name as the schema labels it, with its unit in brackets.
 function fieldName(path) {
@@ -59,9 +87,37 @@ export class TreeTable {
     return scenarioFromState(this.state);
   }
 
+  // A scenario → everything the table will show, built off the page: {state, bodies, svg}.
+  // Throws (a plain InputError above MAX_BRANCHES) without changing anything.
+  stage(scenario) {
+    return this.layOut(stateFromScenario(scenario));
+  }
+
+  layOut(state) {
+    if (state.branches.length > MAX_BRANCHES) throw tooManyBranches(state.branches.length);
+    settleSynapse(state, synapseChoices(state.branches));
+    const bodies = document.createDocumentFragment();
+    state.branches.forEach((b, i) => bodies.append(this.branchBody(b, i)));
+    return { state, bodies, svg: schematicSVG(scenarioFromState(state)) };
+  }
+
+  // Put a staged table on the page.
+  commit(staged) {
+    this.state = staged.state;
+    for (const tb of [...this.table.tBodies]) tb.remove();
+    this.table.append(staged.bodies);
+    const s = this.state;
+    const f = this.form;
+    f.querySelector(`input[name=t-syn-mode][value=${s.synapse.mode === "path" ? "path" : "branch"}]`).checked = true;
+    f.querySelector("#t-syn-distance").value = s.synapse.distance;
+    f.querySelector("#t-syn-path_distance").value = s.synapse.path_distance;
+    for (const k of ["soma_diameter", "Rm", "Ri", "Cm"]) f.querySelector(`#t-${k}`).value = s[k];
+    this.refreshDerived(staged.svg);
+    this.showCarried();
+  }
+
   load(scenario) {
-    this.state = stateFromScenario(scenario);
-    this.render();
+    this.commit(this.stage(scenario));
   }
 
   changed() {
@@ -82,16 +138,7 @@ export class TreeTable {
 
   // --- rendering ---
   render() {
-    const s = this.state;
-    for (const tb of [...this.table.tBodies]) tb.remove();
-    s.branches.forEach((b, i) => this.table.append(this.branchBody(b, i)));
-    const f = this.form;
-    f.querySelector(`input[name=t-syn-mode][value=${s.synapse.mode === "path" ? "path" : "branch"}]`).checked = true;
-    f.querySelector("#t-syn-distance").value = s.synapse.distance;
-    f.querySelector("#t-syn-path_distance").value = s.synapse.path_distance;
-    for (const k of ["soma_diameter", "Rm", "Ri", "Cm"]) f.querySelector(`#t-${k}`).value = s[k];
-    this.refreshDerived();
-    this.showCarried();
+    this.commit(this.layOut(this.state));
   }
 
   // What a loaded scenario holds that the table does not edit: each value keyed by its path.
@@ -175,31 +222,39 @@ export class TreeTable {
   // Parent choices, end cells, synapse choices and the drawing follow the ids and parents.
   // In a big table every parent list would hold every id (n² options, which makes each
   // layout of the page slow), so there a list holds only its current choice until the person
-  // reaches it (focus or pointer), when fillParentChoices gives it every id.
-  refreshDerived() {
+  // reaches it (focus or pointer), when fillParentChoices gives it every id. Every pass here is
+  // O(branches) (a 5,000-branch table would take seconds with a pass per row).
+  // `svg`: the drawing staged with the rows, else it is drawn from the table.
+  refreshDerived(svg) {
     const s = this.state;
     const lazy = s.branches.length > EAGER_PARENT_LISTS;
+    const idCount = new Map();
+    for (const b of s.branches) idCount.set(b.id, (idCount.get(b.id) ?? 0) + 1);
     for (const sel of this.table.querySelectorAll("select.cell-parent")) {
-      if (lazy && sel !== document.activeElement) this.fillParentChoices(sel, true);
+      if (lazy && sel !== document.activeElement) this.fillParentChoices(sel, true, idCount);
       else this.fillParentChoices(sel, false);
     }
+    const choices = synapseChoices(s.branches);
     for (const tb of this.table.tBodies) {
       const i = Number(tb.dataset.b);
       const b = s.branches[i];
-      tb.classList.toggle("terminal", isTerminal(s.branches, i));
+      tb.classList.toggle("terminal", choices.terminal[i]);
       tb.classList.toggle("load", b.end === "load");
     }
-    this.fillSynapseChoices();
-    drawSchematic(this.schematic, this.scenarioForDrawing());
+    this.fillSynapseChoices(choices);
+    if (svg) drawSchematic(this.schematic, null, svg);
+    else drawSchematic(this.schematic, this.scenarioForDrawing());
   }
 
-  fillParentChoices(sel, onlyCurrent) {
+  fillParentChoices(sel, onlyCurrent, idCount = null) {
     const s = this.state;
     const i = Number(sel.dataset.b);
     const current = s.branches[i].parent;
     const choices = onlyCurrent ? (current === "" ? [] : [current])
       : s.branches.map((b) => b.id).filter((id, j) => j !== i && id !== "");
-    const known = onlyCurrent ? s.branches.some((b, j) => j !== i && b.id === current) : choices.includes(current);
+    const others = (id) => (idCount ? (idCount.get(id) ?? 0) - (s.branches[i].id === id ? 1 : 0) > 0
+      : s.branches.some((b, j) => j !== i && b.id === id));
+    const known = onlyCurrent ? others(current) : choices.includes(current);
     const opts = [option("", "(soma)", current === "")];
     for (const id of new Set(choices)) if (id !== current || known) opts.push(option(id, id, id === current));
     if (current !== "" && !known) opts.push(option(current, `${current} (not in the table)`, true));
@@ -222,11 +277,9 @@ export class TreeTable {
     if (this.form.querySelector("#t-syn-branch").options.length) this.readSide();
   }
 
-  fillSynapseChoices() {
+  fillSynapseChoices({ ids, terminals } = synapseChoices(this.state.branches)) {
     const s = this.state;
     const f = this.form;
-    const ids = [...new Set(s.branches.map((b) => b.id).filter((id) => id !== ""))];
-    const terminals = [...new Set(s.branches.filter((b, i) => b.id !== "" && isTerminal(s.branches, i)).map((b) => b.id))];
     const fill = (sel, list, current) => {
       const opts = list.map((id) => option(id, id, id === current));
       if (current !== "" && !list.includes(current)) opts.push(option(current, `${current} (not in the table)`, true));
@@ -289,6 +342,7 @@ export class TreeTable {
     const list = this.state.branches;
     this.readSide();
     const act = button.dataset.act;
+    if (act === "add-child" && this.full()) return;
     if (act === "up" && i > 0) [list[i - 1], list[i]] = [list[i], list[i - 1]];
     else if (act === "down" && i < list.length - 1) [list[i + 1], list[i]] = [list[i], list[i + 1]];
     else if (act === "add-cylinder") list[i].cylinders.push({ ...list[i].cylinders[list[i].cylinders.length - 1] });
@@ -309,7 +363,15 @@ export class TreeTable {
     return `b${n}`;
   }
 
+  // At MAX_BRANCHES, adding a branch is refused with a line saying why.
+  full() {
+    if (this.state.branches.length < MAX_BRANCHES) return false;
+    this.message.textContent = `The branch table holds at most ${MANY} branches; compute a larger cell on the command line: somaward report FILE.`;
+    return true;
+  }
+
   addBranch() {
+    if (this.full()) return;
     this.readSide();
     const last = this.state.branches[this.state.branches.length - 1];
     this.state.branches.push(emptyBranch(this.freshId(), last ? last.id : ""));
@@ -329,6 +391,12 @@ export class TreeTable {
       rows = rowsFromTSV(text);
     } catch (err) {
       this.pasteMsg.textContent = `Not pasted: ${err.message}.`;
+      return false;
+    }
+    const count = replace ? rows.length : this.state.branches.length + rows.length;
+    if (count > MAX_BRANCHES) {
+      this.pasteMsg.textContent = `Not pasted: the table would have ${count.toLocaleString("en-US")} branches; it holds at most ${MANY} ` +
+        "(compute a larger cell on the command line: somaward report FILE).";
       return false;
     }
     this.readSide();

@@ -93,7 +93,7 @@ def read_input(text: str, name: str, kind: str, max_branches: int) -> dict:
         mode, value = value["mode"], value["scenario"]
     branches = value.get("branches") if isinstance(value, dict) else None
     if isinstance(branches, list) and len(branches) > max_branches:
-        where = ("save its scenario with “Save the link's scenario as JSON” and compute it on the command line: "
+        where = ("save its scenario with “Save that cell's scenario as JSON” and compute it on the command line: "
                  "somaward report FILE" if kind == "link"
                  else f"compute it on the command line: somaward report {name}")
         raise Refused(f"the cell has {len(branches):,} branches, too many for the page's branch table, which holds "

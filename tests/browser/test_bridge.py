@@ -77,7 +77,7 @@ def test_read_input_holds_the_table_limit_before_validating():
     # A link has no file name: the page offers its scenario as a file.
     bad = {**chain(12), "membrane": {"Rm": -1}}        # not validated: the count comes first
     ok, err = answer("read_input", json.dumps({"mode": "tree", "scenario": bad}), "the link", "link", 10)
-    assert err["type"] == "TooLarge" and "Save the link's scenario as JSON" in err["plain"]
+    assert err["type"] == "TooLarge" and "Save that cell's scenario as JSON" in err["plain"]
     ok, value = answer("read_input", json.dumps(chain(10)), "ten.json", "file", 10)
     assert ok and value["scenario"] == chain(10) and value["mode"] == "tree" and value["warnings"] == []
 

@@ -127,7 +127,9 @@ def test_bad_link_and_corrupt_file_leave_saved_work(page, served, tmp_path, arti
     bad.write_text('{"membrane": {"Rm": 20000, ')
     page.set_input_files("#import-json", str(bad))
     page.wait_for_selector("body[data-imported=bad]", state="attached")
-    assert page.text_content("#keep-error").startswith("Not opened: broken.json is not valid JSON")
+    said = page.text_content("#keep-error")
+    # The engine's JSON reader (somaward.jsonin) says where: line and column.
+    assert said.startswith("Not opened: broken.json: ") and "not valid JSON" in said and "line 1 column 28" in said, said
     assert saved(page) == before
 
     wrong = tmp_path / "wrong.json"
