@@ -25,25 +25,96 @@ import numpy as np
 
 from . import cable
 
-__all__ = ["run_structure", "up_pass", "down_admittances"]
+__all__ = ["scan", "run_structure", "structure", "up_pass", "down_admittances", "ancestor_sums"]
 
 
-def _compose(ptr, a, b, c, d):
-    """X_i ← X_i · X_ptr(i) (matrix product), ptr ← ptr(ptr), until every pointer ends (pointer jumping)."""
+def _matmul(x, y):
+    """x·y of 2×2 matrices given as entry tuples (a, b, c, d), divided by |a| + |d| of the product."""
+    a1, b1, c1, d1 = x
+    a2, b2, c2, d2 = y
+    a, d = a1 * a2 + b1 * c2, c1 * b2 + d1 * d2
+    scale = 1.0 / (np.abs(a) + np.abs(d))
+    return a * scale, (a1 * b2 + b1 * d2) * scale, (c1 * a2 + d1 * c2) * scale, d * scale
+
+
+def _add(x, y):
+    return tuple(u + v for u, v in zip(x, y, strict=True))
+
+
+def _jump(ptr, values, combine):
+    """X_i ← combine(X_i, X_ptr(i)), ptr ← ptr(ptr), until every pointer ends (pointer jumping)."""
     ptr = ptr.copy()
-    a, b, c, d = a.copy(), b.copy(), c.copy(), d.copy()
+    values = [v.copy() for v in values]
     while True:
         live = np.flatnonzero(ptr >= 0)
         if live.size == 0:
-            return a, b, c, d
+            return values
         q = ptr[live]
-        a1, b1, c1, d1 = a[live], b[live], c[live], d[live]
-        a2, b2, c2, d2 = a[q], b[q], c[q], d[q]
-        na, nb = a1 * a2 + b1 * c2, a1 * b2 + b1 * d2
-        nc, nd = c1 * a2 + d1 * c2, c1 * b2 + d1 * d2
-        scale = 1.0 / (np.abs(na) + np.abs(nd))
-        a[live], b[live], c[live], d[live] = na * scale, nb * scale, nc * scale, nd * scale
+        new = combine(tuple(v[live] for v in values), tuple(v[q] for v in values))
+        for v, w in zip(values, new, strict=True):
+            v[live] = w
         ptr[live] = ptr[q]
+
+
+def scan(values, reset, combine, fill):
+    """Inclusive segmented scan S_j = combine(x_j, S_{j−1}) along axis 0, restarting (S_j = x_j) at resets.
+
+    Blocked so that the work is O(n) and the sequential numpy steps about 2√n at most: a scan
+    inside blocks of B ≤ 64 elements (B steps over all blocks at once), the carry between blocks
+    by pointer jumping (log₂ of the number of blocks), then one step applying each carry.
+    ``combine`` must be associative (matrix products, sums).
+
+    Parameters
+    ----------
+    values : tuple of ndarray
+        The elements x_j as a tuple of arrays (n, ...) (the four entries of a matrix, or one sum).
+    reset : ndarray of bool, (n,)
+        Where the scan restarts; element 0 must be one.
+    combine : callable
+        ``combine(later, earlier)`` of two tuples like ``values``.
+    fill : tuple of float
+        The identity of ``combine``, entry by entry (pads the last block).
+
+    Returns
+    -------
+    tuple of ndarray
+        S_j, shaped as ``values``.
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> scan((np.arange(1.0, 8.0),), np.array([1, 0, 0, 1, 0, 0, 0], bool), _add, (0.0,))[0].tolist()
+    [1.0, 3.0, 6.0, 4.0, 9.0, 15.0, 22.0]
+    """
+    n = len(reset)
+    width = max(1, min(64, int(np.sqrt(n))))
+    nb = -(-n // width)
+    pad = nb * width - n
+
+    def blocks(v, f):
+        if pad:
+            v = np.concatenate([v, np.full((pad,) + v.shape[1:], f, dtype=v.dtype)])
+        return v.reshape((nb, width) + v.shape[1:])
+
+    s = [blocks(v, f).copy() for v, f in zip(values, fill, strict=True)]
+    r = blocks(np.asarray(reset, dtype=bool), True)
+    for col in range(1, width):
+        idx = np.flatnonzero(~r[:, col])
+        if idx.size:
+            new = combine(tuple(v[idx, col] for v in s), tuple(v[idx, col - 1] for v in s))
+            for v, w in zip(s, new, strict=True):
+                v[idx, col] = w
+    seen = np.logical_or.accumulate(r, axis=1)          # a restart at or before j in its block
+    if nb > 1:
+        ptr = np.arange(nb - 1) - 1                       # block c's end takes block c−1's …
+        ptr[seen[:-1, -1]] = -1                           # … unless it restarted inside
+        carry = _jump(ptr, [v[:-1, -1] for v in s], combine)      # S at the end of blocks 0 … nb−2
+        rows, cols = np.nonzero(~seen[1:])
+        if rows.size:
+            new = combine(tuple(v[rows + 1, cols] for v in s), tuple(c[rows] for c in carry))
+            for v, w in zip(s, new, strict=True):
+                v[rows + 1, cols] = w
+    return tuple(v.reshape((nb * width,) + v.shape[2:])[:n] for v in s)
 
 
 def _follow(ptr):
@@ -69,9 +140,11 @@ def run_structure(local_parent, continues):
     Returns
     -------
     dict
-        ``head`` and ``end``: first and last element of each element's run; ``next``: the element
-        after it in its run (−1 at a run's end); ``is_head``; ``groups``: one (members, heads) pair
-        of index arrays per branching level, from the recording site outwards.
+        ``parent`` (``local_parent``); ``head`` and ``end``: first and last element of each
+        element's run; ``next``: the element after it in its run (−1 at a run's end);
+        ``is_head``; ``order``: the elements run by run, each from its head to its end;
+        ``groups``: one (members, heads) pair of index arrays per branching level, from the
+        recording site outwards.
 
     Examples
     --------
@@ -89,18 +162,43 @@ def run_structure(local_parent, continues):
     head, end = _follow(prev), _follow(nxt)
     is_head = ~continues
     level = is_head.astype(np.intp)          # heads on the way from the recording site, minus one
-    anc = local_parent.copy()
-    while True:
-        live = np.flatnonzero(anc >= 0)
-        if live.size == 0:
-            break
-        level[live] += level[anc[live]]
-        anc[live] = anc[anc[live]]
-    level -= 1
-    order = np.argsort(level, kind="stable")
-    cuts = np.flatnonzero(np.diff(level[order])) + 1
-    groups = [(g, g[is_head[g]]) for g in np.split(order, cuts)] if n else []
-    return {"head": head, "end": end, "next": nxt, "is_head": is_head, "groups": groups}
+    anc = np.where(is_head, local_parent, -1)
+    anc = np.where(anc >= 0, head[np.maximum(anc, 0)], -1)     # from head to head: one step per run
+    level_of_head = _jump(anc, [level], _add)[0] - 1
+    level = level_of_head[head]
+    order = np.lexsort((np.arange(n), head))
+    by_level = np.argsort(level, kind="stable")
+    cuts = np.flatnonzero(np.diff(level[by_level])) + 1
+    groups = [(g, g[is_head[g]]) for g in np.split(by_level, cuts)] if n else []
+    return {"parent": local_parent, "head": head, "end": end, "next": nxt, "is_head": is_head, "order": order,
+            "groups": groups}
+
+
+def structure(parent, sel=None):
+    """:func:`run_structure` of every section (``sel`` None) or of one path from the recording site.
+
+    Parameters
+    ----------
+    parent : ndarray of int
+        Parent section of each section (−1 at the recording site), parents before children.
+    sel : ndarray of int, optional
+        Sections from the recording site outwards along one path; default every section.
+
+    Returns
+    -------
+    dict
+        :func:`run_structure`'s, plus ``sel`` (the section of each element).
+    """
+    n = len(parent)
+    counts = np.bincount(parent[parent >= 0], minlength=n)
+    sel = np.arange(n) if sel is None else np.asarray(sel, dtype=np.intp)
+    pos = np.full(n, -1, dtype=np.intp)
+    pos[sel] = np.arange(len(sel))
+    p = parent[sel]
+    lp = np.where(p >= 0, pos[np.maximum(p, 0)], -1)
+    out = run_structure(lp, (lp >= 0) & (counts[np.maximum(p, 0)] == 1))
+    out["sel"] = sel
+    return out
 
 
 def _section_maps(y0, m):
@@ -110,8 +208,7 @@ def _section_maps(y0, m):
     return one, y0 * t, t / y0, one.copy()
 
 
-def _children_counts(parent):
-    return np.bincount(parent[parent >= 0], minlength=len(parent))
+_IDENTITY = (1.0, 0.0, 0.0, 1.0)
 
 
 def up_pass(parent, loads, y0, m):
@@ -138,9 +235,12 @@ def up_pass(parent, loads, y0, m):
     """
     num, den = loads
     n = len(parent)
-    safe_parent = np.maximum(parent, 0)
-    runs = run_structure(parent, (parent >= 0) & (_children_counts(parent)[safe_parent] == 1))
-    a, b, c, d = _compose(runs["next"], *_section_maps(y0, m))     # run end's load ↦ Yin
+    runs = structure(parent)
+    back = runs["order"][::-1]                        # each run from its end to its head
+    maps = tuple(v[back] for v in _section_maps(y0, m))
+    composed = scan(maps, runs["next"][back] < 0, _matmul, _IDENTITY)    # run end's load ↦ Yin
+    a, b, c, d = (np.empty_like(y0) for _ in range(4))
+    a[back], b[back], c[back], d[back] = composed
     yin_run = np.empty_like(y0)
     parent_row = np.where(parent >= 0, parent, n)
     end = runs["end"]
@@ -157,7 +257,7 @@ def up_pass(parent, loads, y0, m):
             "yload_uS": num}
 
 
-def down_admittances(parent, sel, y0, m, up, y_root):
+def down_admittances(runs, y0, m, up, y_root):
     """Root → leaves with composed runs: Yup, the admittance looking back towards the root.
 
     Yup of a section is everything except its own subtree, seen from its proximal node. At the
@@ -167,11 +267,8 @@ def down_admittances(parent, sel, y0, m, up, y_root):
 
     Parameters
     ----------
-    parent : ndarray of int
-        Parent section of each section (−1 at the recording site).
-    sel : ndarray of int
-        The sections wanted, parents before children: every section, or one path from the
-        recording site outwards.
+    runs : dict
+        :func:`structure` of the sections wanted (every section, or one path).
     y0 : ndarray, (N, F)
         Characteristic admittance of each section (µS).
     m : ndarray, (N, F)
@@ -184,22 +281,19 @@ def down_admittances(parent, sel, y0, m, up, y_root):
     Returns
     -------
     ndarray, (len(sel), F)
-        Yup of each section of ``sel`` (µS).
+        Yup of each section of ``runs["sel"]`` (µS).
     """
     yin, yload = up["yin_uS"], up["yload_uS"]
-    n = len(parent)
-    pos = np.full(n, -1, dtype=np.intp)
-    pos[sel] = np.arange(len(sel))
-    p = parent[sel]
-    lp = np.where(p >= 0, pos[np.maximum(p, 0)], -1)
-    continues = (lp >= 0) & (_children_counts(parent)[np.maximum(p, 0)] == 1)
-    runs = run_structure(lp, continues)
-    ps = sel[np.maximum(lp, 0)]                       # the parent's section (unused at heads)
-    a, b, c, d = _section_maps(y0[ps], m[ps])        # Yup of the parent ↦ Yup of the element
-    ptr = np.where(continues & continues[np.maximum(lp, 0)], lp, -1)
-    a, b, c, d = _compose(ptr, a, b, c, d)          # Yup at the run's head ↦ Yup of the element
+    sel, lp, is_head, head = runs["sel"], runs["parent"], runs["is_head"], runs["head"]
+    order = runs["order"]
+    ps = sel[np.maximum(lp, 0)][order]                # the parent's section (unused at heads)
+    maps = _section_maps(y0[ps], m[ps])               # Yup of the parent ↦ Yup of the element
+    at_head = is_head[order]
+    maps = tuple(np.where(at_head[:, None], f, v) for v, f in zip(maps, _IDENTITY, strict=True))
+    composed = scan(maps, at_head, _matmul, _IDENTITY)   # Yup at the run's head ↦ Yup of the element
+    a, b, c, d = (np.empty((len(sel), y0.shape[1]), dtype=y0.dtype) for _ in range(4))
+    a[order], b[order], c[order], d[order] = composed
     yup = np.empty((len(sel), y0.shape[1]), dtype=y0.dtype)
-    head = runs["head"]
     for members, heads in runs["groups"]:
         at_root = lp[heads] < 0
         base = np.empty((len(heads), y0.shape[1]), dtype=y0.dtype)
@@ -211,7 +305,38 @@ def down_admittances(parent, sel, y0, m, up, y_root):
                 g, op, om = cable.reflection(y0[sp], yup[ph])
                 base[~at_root] = cable.through_admittance(y0[sp], g, om, op, m[sp]) + yload[sp]
         yup[heads] = base - yin[sel[heads]]
-        inner = members[~runs["is_head"][members]]
+        inner = members[~is_head[members]]
         h = yup[head[inner]]
         yup[inner] = (a[inner] * h + b[inner]) / (c[inner] * h + d[inner])
     return yup
+
+
+def ancestor_sums(runs, *own):
+    """Σ of each ``own`` over every element and its ancestors: within runs by :func:`scan`, then
+    adding the sum at each run's parent, one branching level after another.
+
+    Parameters
+    ----------
+    runs : dict
+        :func:`structure` of the elements (every section, or one path).
+    *own : ndarray, (len(sel), F)
+        The terms of each element.
+
+    Returns
+    -------
+    list of ndarray
+        The sums, one per ``own``.
+    """
+    order, lp, head = runs["order"], runs["parent"], runs["head"]
+    sums = scan(tuple(v[order] for v in own), runs["is_head"][order], _add, (0.0,) * len(own))
+    out = [np.empty_like(v) for v in own]
+    for o, v in zip(out, sums, strict=True):
+        o[order] = v
+    for members, heads in runs["groups"]:
+        if lp[heads[0]] < 0 and np.all(lp[heads] < 0):
+            continue
+        base = lp[head[members]]
+        inside = base >= 0
+        for o in out:
+            o[members[inside]] += o[base[inside]]
+    return out

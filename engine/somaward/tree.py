@@ -348,9 +348,9 @@ def solve_tree(tree, s_per_ms, path=None, reference=False):
         levels = tree.levels if path is None else tuple((int(i), int(i) + 1) for i in path)
         down = _down_pass(tree, levels, y0, kappa, m, up, y_root)
     else:
-        sel = np.arange(tree.n_sections) if path is None else np.asarray(path, dtype=np.intp)
-        yup = runs.down_admittances(tree.parent, sel, y0, m, up, y_root)
-        down = _down_logs(tree, sel, path is None, y0, kappa, m, up, yup)
+        along = runs.structure(tree.parent, path)
+        yup = runs.down_admittances(along, y0, m, up, y_root)
+        down = _down_logs(along, path is None, y0, kappa, m, up, yup)
     return TreeSolution(tree=tree, s_per_ms=s, propagation=k, y0_uS=y0, round_trip_m1=m, y_root_uS=y_root,
                         y_soma_uS=y_soma, **up, **down)
 
@@ -408,18 +408,19 @@ def _down_pass(tree, levels, y0, kappa, m, up, y_root):
             "down_log": down_log, "up_log": up_log}
 
 
-def _down_logs(tree, sel, whole, y0, kappa, m, up, yup):
-    """Γ' of the loads Yup at the sections ``sel``, then the ln-ratio sums D and U along the ancestors."""
+def _down_logs(along, whole, y0, kappa, m, up, yup):
+    """Γ' of the loads Yup along ``along`` (:func:`runs.structure`), then the ln-ratio sums D and U."""
+    sel = along["sel"]
     gam, opg = up["gamma_distal"], up["one_plus_gamma_distal"]
     gup, opu, omu = (np.empty_like(y0) for _ in range(3))
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
         gup[sel], opu[sel], omu[sel] = cable.reflection(y0[sel], yup)
-    sel = slice(None) if whole else sel
-    zero = np.zeros_like(m[sel])
-    own_d = cable.log_voltage_ratio(kappa[sel], gam[sel], opg[sel], zero, m[sel])
-    own_u = cable.log_voltage_ratio(kappa[sel], gup[sel], opu[sel], zero, m[sel])
+    rows = slice(None) if whole else sel
+    zero = np.zeros_like(m[rows])
+    own_d = cable.log_voltage_ratio(kappa[rows], gam[rows], opg[rows], zero, m[rows])
+    own_u = cable.log_voltage_ratio(kappa[rows], gup[rows], opu[rows], zero, m[rows])
     down_log, up_log = np.empty_like(y0), np.empty_like(y0)
-    down_log[sel], up_log[sel] = _ancestor_sums(tree.parent, sel, own_d, own_u)
+    down_log[rows], up_log[rows] = runs.ancestor_sums(along, own_d, own_u)
     return {"gamma_proximal": gup, "one_plus_gamma_proximal": opu, "one_minus_gamma_proximal": omu,
             "down_log": down_log, "up_log": up_log}
 
