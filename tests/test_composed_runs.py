@@ -143,3 +143,58 @@ def test_composed_passes_stay_finite_at_the_schema_bounds():
     assert np.all(np.isfinite(new.up_log)) and np.all(np.isfinite(new.down_log))
     _assert_same(new.up_log, ref.up_log, slice(None), "log")
     _assert_same(new.down_log, ref.down_log, slice(None), "log")
+
+
+def _long_run_tree(soma):
+    rng = np.random.default_rng(5)
+    return build_tree(random_branches(1500, rng, run=(50, 300)), MEMBRANE, soma)
+
+
+def _random_points(tree, rng, n):
+    secs = rng.integers(tree.n_sections, size=n)
+    return [(int(s), float(rng.uniform(0, 1) * tree.length_um[s])) for s in secs]
+
+
+@pytest.mark.parametrize("soma", [None, {"diameter": 16.0}])
+def test_S6_reciprocity_with_composed_runs(soma):
+    """S6 — Z_ij = Z_ji (linear network theory; Koch 1999 ch. 3), from two separate injections
+    (transfer_log at i and at j), on an invented tree of 1500 cylinders in runs of 50–300, whose
+    passes compose the runs: 20 random pairs, DC and up to 10 kHz, 1e-9 (the tolerance of
+    tests/test_tree_identities.py)."""
+    from somaward.sites import transfer_log
+
+    tree = _long_run_tree(soma)
+    sol = solve_tree(tree, laplace_of_hz(FREQS_HZ))
+    rng = np.random.default_rng(2)
+    pts = _random_points(tree, rng, 40)
+    for a, b in zip(pts[::2], pts[1::2], strict=True):
+        zab, zba = transfer_log(sol, a, b), transfer_log(sol, b, a)
+        ok = np.isfinite(zab.real)                      # a point on a killed end: V = 0 both ways
+        assert np.array_equal(ok, np.isfinite(zba.real))
+        assert np.max(np.abs(np.exp(zab[ok] - zba[ok]) - 1), initial=0.0) < 1e-9, (a, b)
+
+
+def test_F3_additivity_with_composed_runs():
+    """F3 — Zador, Agmon-Snir & Segev 1995, J Neurosci 15:1669: for j on the path from i to k,
+    ln(V_k/V_i | I at i) = ln(V_j/V_i | I at i) + ln(V_k/V_j | I at j), each ratio from its own
+    injection (ln Z_ab − ln Z_aa), on the tree of 1500 cylinders in long runs: j inside a run,
+    at the soma side of a branch point, and paths both ways, DC and up to 10 kHz, 1e-9."""
+    from somaward.sites import transfer_log
+
+    tree = _long_run_tree({"diameter": 16.0})
+    sol = solve_tree(tree, laplace_of_hz(FREQS_HZ))
+    ratio = lambda a, b: transfer_log(sol, a, b) - transfer_log(sol, a, a)  # noqa: E731
+    rng = np.random.default_rng(4)
+    deep = [int(s) for s in rng.integers(tree.n_sections, size=6) if tree.end_code[s] != 2]
+    checked = 0
+    for sec in deep:
+        path = section_path(tree, sec)
+        if len(path) < 3:
+            continue
+        mid, root = path[len(path) // 2], path[0]
+        i, j, k = (sec, 0.5 * float(tree.length_um[sec])), (mid, 0.3 * float(tree.length_um[mid])), (root, 0.0)
+        for a, b, c in ((i, j, k), (k, j, i)):
+            lhs, rhs = ratio(a, c), ratio(a, b) + ratio(b, c)
+            assert np.max(np.abs(np.exp(lhs - rhs) - 1)) < 1e-9, (a, b, c)
+            checked += 1
+    assert checked >= 4

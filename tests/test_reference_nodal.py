@@ -537,3 +537,44 @@ def test_reference_precision_is_enough_for_long_thin():
         assert abs(a - b) < 1e-25 * abs(b)
     assert vals[0][0] > 50  # really a steep attenuation
     assert math.isfinite(float(vals[0][2]))
+
+
+def _long_runs_tree():
+    """Invented: soma, a trunk of 40 cylinders, then two tufts of 30 (100 cylinders, long runs)."""
+    trunk = [{"length": 10.0, "diameter": 2.0 if i % 2 else 1.6} for i in range(40)]
+    tuft_a = [{"length": 12.0, "diameter": 0.9 if i % 2 else 0.7} for i in range(30)]
+    tuft_b = [{"length": 8.0, "diameter": 1.1 if i % 2 else 0.8} for i in range(30)]
+    return {"membrane": {"Rm": 20000, "Ri": 150, "Cm": 1.0}, "soma": {"diameter": 18},
+            "branches": [{"id": "trunk", "parent": None, "cylinders": trunk},
+                         {"id": "a", "parent": "trunk", "cylinders": tuft_a, "end": "killed"},
+                         {"id": "b", "parent": "trunk", "cylinders": tuft_b, "end": "infinite"}],
+            "synapse": {"branch": "a", "distance": 203.0}, "frequencies_hz": [0.0, 100.0, 3000.0],
+            "map_spacing_um": 1000.0}
+
+
+@pytest.mark.slow
+def test_S10_hundred_cylinders_in_long_runs():
+    """S10: independent computation (mpmath nodal analysis, 30 digits); two-port after Hodgkin &
+    Rushton 1946, Rall 1959, Rall 1977. A tree of 10² cylinders in three unbranched runs (so the
+    engine composes runs of 40 and 30 two-ports, issue 11): input impedances at the soma and the
+    synapse, the transfer impedance and the attenuation both ways, A_site→soma = Z(soma ← site) /
+    Z(site ← site) and A_soma→site = Z(site ← soma) / Z(soma ← soma), at 0, 100 and 3000 Hz."""
+    import somaward
+
+    sc = _long_runs_tree()
+    rep = somaward.solve(copy.deepcopy(sc))
+    site = ("a", 203.0)
+    ref, m = NodalTree(sc, sites=[site]), Mismatches("long_runs")
+    fr = rep["frequency_response"]
+    for i, freq_hz in enumerate(sc["frequencies_hz"]):
+        z_ss, z_yy = ref.impedance(freq_hz, "soma", "soma"), ref.impedance(freq_hz, site, site)
+        z_sy, z_ys = ref.impedance(freq_hz, "soma", site), ref.impedance(freq_hz, site, "soma")
+        m.check(f"soma_input_impedance[{freq_hz}]", fr["soma_input_impedance_Mohm"]["magnitude"][i], abs(z_ss))
+        m.check(f"site_input_impedance[{freq_hz}]", fr["site_input_impedance_Mohm"]["magnitude"][i], abs(z_yy))
+        m.check(f"transfer_impedance[{freq_hz}]", fr["transfer_impedance_Mohm"]["magnitude"][i], abs(z_sy))
+        m.check(f"site_to_soma.log_attenuation[{freq_hz}]", fr["site_to_soma"]["log_attenuation"][i],
+                -mp.log(abs(z_sy / z_yy)))
+        m.check(f"soma_to_site.log_attenuation[{freq_hz}]", fr["soma_to_site"]["log_attenuation"][i],
+                -mp.log(abs(z_ys / z_ss)))
+    m.check("soma_input_resistance_Mohm", rep["soma_input_resistance_Mohm"], mp.re(ref.impedance(0.0, "soma", "soma")))
+    m.done()
