@@ -49,7 +49,10 @@ def laplace_of_hz(freq_hz):
 def site_response(tree, sec, y_um, s_per_ms):
     """Complex logs at one site for Laplace variables ``s_per_ms``, computed in chunks of them.
 
-    The down pass runs along the path to the site only (module docstring).
+    The down pass runs along the path to the site only (module docstring); both passes compose
+    unbranched runs (:mod:`somaward.runs`), so a chunk costs O(N) work in a number of numpy steps
+    set by the branching, not the cylinder count. Chunks of :data:`CHUNK_VALUES` sections ×
+    frequencies bound the memory, whatever the number of frequencies.
 
     Parameters
     ----------

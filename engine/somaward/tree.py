@@ -2,9 +2,12 @@
 
 A tree is stored as *sections* (uniform cylinders), numbered so that every level — the sections
 at the same number of sections from the recording site — is one contiguous block and every
-parent comes before its children. The passes walk the levels with numpy over all sections of a
-level and all frequencies at once; nothing recurses, so a chain of 10⁵ sections is as safe as a
-bushy tree.
+parent comes before its children. The passes treat each unbranched run of sections as one
+composed two-port (:mod:`somaward.runs`): the sequential numpy steps follow the branching depth
+plus about 2√(longest run), over all sections and frequencies at once, and the work stays O(N);
+nothing recurses, so a chain of 10⁵ sections is as safe and nearly as fast per section as a
+bushy tree. The per-level passes (one numpy step per level of sections) are kept as
+``solve_tree(..., reference=True)``, the tests' reference.
 
 For every Laplace variable s (1/ms) and section i the passes give (notation of :mod:`cable`):
 
