@@ -91,30 +91,30 @@ def scan(values, reset, combine, fill):
     nb = -(-n // width)
     pad = nb * width - n
 
-    def blocks(v, f):
+    def blocks(v, f):                                   # (width, nb, …): a column of blocks is contiguous
         if pad:
             v = np.concatenate([v, np.full((pad,) + v.shape[1:], f, dtype=v.dtype)])
-        return v.reshape((nb, width) + v.shape[1:])
+        return np.ascontiguousarray(np.swapaxes(v.reshape((nb, width) + v.shape[1:]), 0, 1))
 
-    s = [blocks(v, f).copy() for v, f in zip(values, fill, strict=True)]
+    s = [blocks(v, f) for v, f in zip(values, fill, strict=True)]
     r = blocks(np.asarray(reset, dtype=bool), True)
     for col in range(1, width):
-        idx = np.flatnonzero(~r[:, col])
-        if idx.size:
-            new = combine(tuple(v[idx, col] for v in s), tuple(v[idx, col - 1] for v in s))
+        keep = ~r[col]
+        if keep.any():
+            new = combine(tuple(v[col] for v in s), tuple(v[col - 1] for v in s))
             for v, w in zip(s, new, strict=True):
-                v[idx, col] = w
-    seen = np.logical_or.accumulate(r, axis=1)          # a restart at or before j in its block
+                np.copyto(v[col], w, where=keep.reshape(keep.shape + (1,) * (w.ndim - 1)))
+    seen = np.logical_or.accumulate(r, axis=0)          # a restart at or before j in its block
     if nb > 1:
         ptr = np.arange(nb - 1) - 1                       # block c's end takes block c−1's …
-        ptr[seen[:-1, -1]] = -1                           # … unless it restarted inside
-        carry = _jump(ptr, [v[:-1, -1] for v in s], combine)      # S at the end of blocks 0 … nb−2
-        rows, cols = np.nonzero(~seen[1:])
+        ptr[seen[-1, :-1]] = -1                           # … unless it restarted inside
+        carry = _jump(ptr, [v[-1, :-1] for v in s], combine)      # S at the end of blocks 0 … nb−2
+        cols, rows = np.nonzero(~seen[:, 1:])
         if rows.size:
-            new = combine(tuple(v[rows + 1, cols] for v in s), tuple(c[rows] for c in carry))
+            new = combine(tuple(v[cols, rows + 1] for v in s), tuple(c[rows] for c in carry))
             for v, w in zip(s, new, strict=True):
-                v[rows + 1, cols] = w
-    return tuple(v.reshape((nb * width,) + v.shape[2:])[:n] for v in s)
+                v[cols, rows + 1] = w
+    return tuple(np.swapaxes(v, 0, 1).reshape((nb * width,) + v.shape[2:])[:n] for v in s)
 
 
 def _follow(ptr):
