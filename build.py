@@ -219,7 +219,7 @@ def deterministic_zip(entries: dict[str, bytes]) -> bytes:
 def make_wheel(dist: str, version: str, files: dict[str, bytes], requires: list[str]) -> bytes:
     """A pure-Python wheel (PEP 427) built in memory, byte-for-byte reproducible."""
     info = f"{dist}-{version}.dist-info"
-    meta = [f"Metadata-Version: 2.1", f"Name: {dist.replace('_', '-')}", f"Version: {version}"]
+    meta = ["Metadata-Version: 2.1", f"Name: {dist.replace('_', '-')}", f"Version: {version}"]
     meta += [f"Requires-Dist: {r}" for r in requires]
     entries = dict(files)
     entries[f"{info}/METADATA"] = ("\n".join(meta) + "\n").encode()
@@ -355,7 +355,8 @@ def engine_vocabulary() -> dict:
     fresh interpreter, so that the page's words are the wheel's."""
     code = ("import json, sys; from somaward import quantities as q; "
             "json.dump({rec: q.vocabulary(rec) for rec in q.RECORDING_SITES}, sys.stdout, ensure_ascii=False)")
-    env = dict(os.environ, PYTHONPATH=os.pathsep.join(filter(None, [str(ROOT / "engine"), os.environ.get("PYTHONPATH")])))
+    path = os.pathsep.join(filter(None, [str(ROOT / "engine"), os.environ.get("PYTHONPATH")]))
+    env = dict(os.environ, PYTHONPATH=path)
     proc = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, env=env, cwd=ROOT)
     if proc.returncode != 0:
         last = (proc.stderr.strip().splitlines() or ["no output"])[-1]

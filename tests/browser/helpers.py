@@ -52,7 +52,7 @@ def differences(a, b, path="report", rel=1e-12, abs_tol=1e-12) -> list[str]:
     if isinstance(a, list) and isinstance(b, list):
         if len(a) != len(b):
             return [f"{path}: length {len(a)} != {len(b)}"]
-        return [d for i, (x, y) in enumerate(zip(a, b))
+        return [d for i, (x, y) in enumerate(zip(a, b, strict=True))
                 for d in differences(x, y, f"{path}[{i}]", rel, abs_tol)]
     return [f"{path}: {type(a).__name__} != {type(b).__name__}"]
 

@@ -110,7 +110,8 @@ def test_quick_cable_comparison_equals_cpython_rounded(page, served, artifacts):
             key = f"equivalent_cylinder.comparison.{quantity}.{column}"
             text = page.text_content(f"#eq-comparison .num[data-key='{key}']")
             assert text == shown(cmp_[quantity][column], key), f"{key}: {text!r}"
-        unit = page.text_content(f"#eq-comparison [data-unit-for='equivalent_cylinder.comparison.{quantity}.relative_error']")
+        key = f"equivalent_cylinder.comparison.{quantity}.relative_error"
+        unit = page.text_content(f"#eq-comparison [data-unit-for='{key}']")
         assert unit == "%"
     for key, value in (("site_to_soma", cmp_["not_given_by_cylinder"]["site_to_soma"]),
                        ("site_input_resistance_Mohm", cmp_["not_given_by_cylinder"]["site_input_resistance_Mohm"])):

@@ -62,7 +62,6 @@ def test_link_reopens_inputs_in_a_fresh_context(page, served, browser, tmp_path,
     tree_link = page.url
     assert len(tree_link) <= 2000, len(tree_link)
     tree_inputs = inputs(page)
-    quick_inputs = None
     for link in (quick_link, tree_link):
         ctx = browser.new_context()
         p = ctx.new_page()
@@ -129,7 +128,8 @@ def test_bad_link_and_corrupt_file_leave_saved_work(page, served, tmp_path, arti
     page.wait_for_selector("body[data-imported=bad]", state="attached")
     said = page.text_content("#keep-error")
     # The engine's JSON reader (somaward.jsonin) says where: line and column.
-    assert said.startswith("Not opened: broken.json: ") and "not valid JSON" in said and "line 1 column 28" in said, said
+    assert said.startswith("Not opened: broken.json: ") and "not valid JSON" in said, said
+    assert "line 1 column 28" in said, said
     assert saved(page) == before
 
     wrong = tmp_path / "wrong.json"

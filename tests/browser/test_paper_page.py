@@ -132,7 +132,8 @@ def test_copy_falls_back_on_plain_http(served, browser, artifacts):
             assert page.evaluate("window.isSecureContext") is False
             page.click('#paper button[data-copy="table"][data-fmt="tsv"]')
             assert page.is_visible("#copy-fallback")
-            assert "plain http" in page.text_content("#copy-fallback-words") or "Ctrl+C" in page.text_content("#copy-fallback-words")
+            words = page.text_content("#copy-fallback-words")
+            assert "plain http" in words or "Ctrl+C" in words
             area = page.locator("#copy-fallback-text")
             text = area.input_value()
             assert text.startswith("Quantity\tValue\tUnit\n") and page.text_content("#paper-stamp") in text

@@ -39,7 +39,8 @@ WALK = r"""() => {
   const where = (el) => {
     const parts = [];
     for (let e = el; e && e !== document.body && parts.length < 4; e = e.parentElement) {
-      parts.unshift(e.id ? `#${e.id}` : e.tagName.toLowerCase() + (e.className && typeof e.className === "string" ? `.${e.className.split(" ")[0]}` : ""));
+      const cls = e.className && typeof e.className === "string" ? `.${e.className.split(" ")[0]}` : "";
+      parts.unshift(e.id ? `#${e.id}` : e.tagName.toLowerCase() + cls);
     }
     return parts.join(" > ");
   };
@@ -57,10 +58,14 @@ WALK = r"""() => {
   const all = (sel) => [...document.querySelectorAll(sel)].filter(visible);
   return {
     unkeyed,
-    labels: all("[data-label-for]").map((e) => ({ key: e.dataset.labelFor, text: e.textContent, inSentence: e.classList.contains("in-sentence"), where: where(e) })),
+    labels: all("[data-label-for]").map((e) => ({
+      key: e.dataset.labelFor, text: e.textContent, inSentence: e.classList.contains("in-sentence"),
+      where: where(e) })),
     units: all("[data-unit-for]").map((e) => ({ key: e.dataset.unitFor, text: e.textContent, where: where(e) })),
-    definitions: all("[data-definition-for]").map((e) => ({ key: e.dataset.definitionFor, text: e.textContent, where: where(e) })),
-    numbers: all("button.num[data-key]").map((e) => ({ key: e.dataset.key, value: e.dataset.value, text: e.textContent, where: where(e) })),
+    definitions: all("[data-definition-for]").map((e) => ({
+      key: e.dataset.definitionFor, text: e.textContent, where: where(e) })),
+    numbers: all("button.num[data-key]").map((e) => ({
+      key: e.dataset.key, value: e.dataset.value, text: e.textContent, where: where(e) })),
     keys: all("[data-key]").map((e) => e.dataset.key),
   };
 }"""
@@ -243,7 +248,8 @@ def test_saved_scenario_gives_the_clis_report(page, served, tmp_path, mode):
     cli = cli_report(path)
     assert differences(report, cli) == []
     assert report["stamp"]["fingerprint"] == cli["stamp"]["fingerprint"]
-    assert report["frequency_response"]["frequencies_hz"] == somaward.solve(saved)["frequency_response"]["frequencies_hz"]
+    engine = somaward.solve(saved)
+    assert report["frequency_response"]["frequencies_hz"] == engine["frequency_response"]["frequencies_hz"]
 
 
 def svg_words(svg: str) -> str:
@@ -314,9 +320,11 @@ def test_colours_keep_one_meaning(page, served, tmp_path, n):
     # synapse itself); the cylinder has its own colour.
     entries = page.locator(".legend li").evaluate_all("""lis => lis.map(li => ({
         colour: li.querySelector('[data-colour]').dataset.colour,
-        key: li.querySelector('[data-label-for]')?.dataset.labelFor ?? li.querySelector('[data-key]').dataset.key }))""")
+        key: li.querySelector('[data-label-for]')?.dataset.labelFor
+             ?? li.querySelector('[data-key]').dataset.key }))""")
     from_synapse = {"path_profile.input_at_site", "frequency_response.site_to_soma.magnitude",
-                    "frequency_response.site_to_soma.phase_delay_ms", "equivalent_cylinder.comparison.soma_to_site.tree"}
+                    "frequency_response.site_to_soma.phase_delay_ms",
+                    "equivalent_cylinder.comparison.soma_to_site.tree"}
     assert {e["key"] for e in entries if e["colour"] == colours["synapse"]} == from_synapse
     assert [e["colour"] for e in entries if e["key"] == "equivalent_cylinder.cylinder.curve.soma_to_site"] == \
         [colours["cylinder"]]
@@ -339,7 +347,8 @@ def test_old_sections_file_opens_with_the_engines_warning(page, served, tmp_path
     assert warnings and "cylinders" in warnings[0]
     status = page.text_content("#keep-status")
     assert "'cylinders'" in status and "branches[" not in status
-    assert page.locator('#branch-table tbody[data-b="0"] tr.cylinder-row').count() == len(DEMO["branches"][0]["cylinders"]) - 1
+    rows = page.locator('#branch-table tbody[data-b="0"] tr.cylinder-row').count()
+    assert rows == len(DEMO["branches"][0]["cylinders"]) - 1
     report = shown_report(page)
     expected = json.loads(json.dumps(somaward.solve(renamed)))
     # The table writes every terminal's end, so fewer defaults are applied; the solved scenario
@@ -348,10 +357,12 @@ def test_old_sections_file_opens_with_the_engines_warning(page, served, tmp_path
     assert differences(report, expected) == []
 
     # An autosave from before the rename comes back the same way.
-    page.evaluate("s => localStorage.setItem('somaward.work.v1', JSON.stringify({savedAt: '', snapshot: {mode: 'tree', scenario: s}}))", old)
+    page.evaluate("s => localStorage.setItem('somaward.work.v1', "
+                  "JSON.stringify({savedAt: '', snapshot: {mode: 'tree', scenario: s}}))", old)
     page.goto(served.url)
     wait_result(page)
-    page.wait_for_function("() => document.querySelectorAll('#branch-table tbody[data-b=\"0\"] tr.cylinder-row').length > 0")
+    page.wait_for_function(
+        "() => document.querySelectorAll('#branch-table tbody[data-b=\"0\"] tr.cylinder-row').length > 0")
     assert "'cylinders'" in page.text_content("#keep-status")
     assert shown_report(page)["scenario"]["branches"][0]["cylinders"] == DEMO["branches"][0]["cylinders"]
 
