@@ -332,11 +332,8 @@ def ancestor_sums(runs, *own):
     out = [np.empty_like(v) for v in own]
     for o, v in zip(out, sums, strict=True):
         o[order] = v
-    for members, heads in runs["groups"]:
-        if lp[heads[0]] < 0 and np.all(lp[heads] < 0):
-            continue
-        base = lp[head[members]]
-        inside = base >= 0
+    for members, _ in runs["groups"][1:]:               # level 0 starts at the recording site
+        base = lp[head[members]]                          # the run's parent, one level nearer: final
         for o in out:
-            o[members[inside]] += o[base[inside]]
+            o[members] += o[base]
     return out
