@@ -237,17 +237,16 @@ def up_pass(parent, loads, y0, m):
     n = len(parent)
     runs = structure(parent)
     back = runs["order"][::-1]                        # each run from its end to its head
-    maps = tuple(v[back] for v in _section_maps(y0, m))
-    composed = scan(maps, runs["next"][back] < 0, _matmul, _IDENTITY)    # run end's load ↦ Yin
-    a, b, c, d = (np.empty_like(y0) for _ in range(4))
-    a[back], b[back], c[back], d[back] = composed
-    yin_run = np.empty_like(y0)
+    at = np.empty(n, dtype=np.intp)                   # where each section sits in ``back``
+    at[back] = np.arange(n)
+    a, b, c, d = scan(_section_maps(y0[back], m[back]), runs["next"][back] < 0, _matmul, _IDENTITY)
+    yin_run = np.empty_like(y0)                       # (run end's load ↦ Yin, in ``back``'s order)
     parent_row = np.where(parent >= 0, parent, n)
     end = runs["end"]
     for members, heads in reversed(runs["groups"]):
-        e = end[members]
+        e, k = end[members], at[members]
         ne, de = num[e], den[e]
-        yin_run[members] = (a[members] * ne + b[members] * de) / (c[members] * ne + d[members] * de)
+        yin_run[members] = (a[k] * ne + b[k] * de) / (c[k] * ne + d[k] * de)
         np.add.at(num, parent_row[heads], yin_run[heads])
     inner = np.flatnonzero(runs["next"] >= 0)
     num[inner] = yin_run[runs["next"][inner]]
@@ -286,13 +285,13 @@ def down_admittances(runs, y0, m, up, y_root):
     yin, yload = up["yin_uS"], up["yload_uS"]
     sel, lp, is_head, head = runs["sel"], runs["parent"], runs["is_head"], runs["head"]
     order = runs["order"]
+    at = np.empty(len(sel), dtype=np.intp)            # where each element sits in ``order``
+    at[order] = np.arange(len(sel))
     ps = sel[np.maximum(lp, 0)][order]                # the parent's section (unused at heads)
     maps = _section_maps(y0[ps], m[ps])               # Yup of the parent ↦ Yup of the element
     at_head = is_head[order]
     maps = tuple(np.where(at_head[:, None], f, v) for v, f in zip(maps, _IDENTITY, strict=True))
-    composed = scan(maps, at_head, _matmul, _IDENTITY)   # Yup at the run's head ↦ Yup of the element
-    a, b, c, d = (np.empty((len(sel), y0.shape[1]), dtype=y0.dtype) for _ in range(4))
-    a[order], b[order], c[order], d[order] = composed
+    a, b, c, d = scan(maps, at_head, _matmul, _IDENTITY)   # Yup at the run's head ↦ Yup, in ``order``
     yup = np.empty((len(sel), y0.shape[1]), dtype=y0.dtype)
     for members, heads in runs["groups"]:
         at_root = lp[heads] < 0
@@ -306,8 +305,8 @@ def down_admittances(runs, y0, m, up, y_root):
                 base[~at_root] = cable.through_admittance(y0[sp], g, om, op, m[sp]) + yload[sp]
         yup[heads] = base - yin[sel[heads]]
         inner = members[~is_head[members]]
-        h = yup[head[inner]]
-        yup[inner] = (a[inner] * h + b[inner]) / (c[inner] * h + d[inner])
+        h, k = yup[head[inner]], at[inner]
+        yup[inner] = (a[k] * h + b[k]) / (c[k] * h + d[k])
     return yup
 
 
