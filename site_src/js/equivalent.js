@@ -88,7 +88,7 @@ function cylinderJoinTable(vocab, report) {
 function terminalTable(vocab, report) {
   const eq = report[EQ];
   const box = withId(listTable(vocab, report, {
-    caption: "Terminals", list: `${EQ}.terminals`, name: "terminals",
+    caption: caption(vocab, `${EQ}.terminals`), list: `${EQ}.terminals`, name: "terminals",
     columns: ["branch", "electrotonic_distance", "departure", "end", "end_ok", "ok"],
     markRow: (r) => r.ok, empty: "—",
   }), "eq-terminals");
@@ -110,7 +110,7 @@ function ruleText(vocab, report, key) {
 function cylinderTable(vocab, report) {
   const keys = ["diameter_um", "electrotonic_length", "electrotonic_length_min", "electrotonic_length_max", "lambda_um",
     "length_um", "end", "stems"].map((k) => `${EQ}.cylinder.${k}`);
-  const box = withId(keyTable(vocab, report, { caption: "The equivalent cylinder", keys, name: "cylinder" }), "eq-cylinder");
+  const box = withId(keyTable(vocab, report, { caption: caption(vocab, `${EQ}.cylinder`), keys, name: "cylinder" }), "eq-cylinder");
   return [box, ruleText(vocab, report, "length_rule"), ruleText(vocab, report, "taper_rule")].filter(Boolean);
 }
 
@@ -120,7 +120,7 @@ function comparisonTable(vocab, report) {
   for (const q of ["soma_to_site", "transfer_resistance_Mohm", "soma_input_resistance_Mohm"]) {
     for (const c of ["tree", "cylinder", "relative_error"]) keys.push(`${CMP}.${q}.${c}`);
   }
-  const parts = [withId(keyTable(vocab, report, { caption: "Full tree and equivalent cylinder at the synapse", keys,
+  const parts = [withId(keyTable(vocab, report, { caption: caption(vocab, CMP), keys,
     name: "comparison", define: [`${CMP}.transfer_resistance_Mohm.tree`, `${CMP}.soma_input_resistance_Mohm.tree`] }),
   "eq-comparison")];
   if (cmp.note) {
@@ -142,7 +142,7 @@ function notGiven(vocab, report) {
   const note = el("p", ng.note ?? "");
   note.dataset.key = `${CMP}.not_given_by_cylinder.note`;
   box.append(el("h3", labelNode(vocab, `${CMP}.not_given_by_cylinder.note`)), note,
-    keyTable(vocab, report, { caption: "From the full tree", keys, name: "not_given" }));
+    keyTable(vocab, report, { caption: caption(vocab, `${CMP}.not_given_by_cylinder`), keys, name: "not_given" }));
   return box;
 }
 
