@@ -142,8 +142,14 @@ def test_recomputes_while_typing(page, served):
     page.fill("#f-distance", "")
     page.locator("#f-distance").press_sequentially("550", delay=40)
     assert page.get_attribute("body", "data-results") == "stale"
-    wait_result(page)
-    report = shown_report(page)
+    # On a loaded machine a pause between keys can outlast the debounce, so "5" or "55" may be
+    # answered first: the newest input's answer is the one that counts.
+    for _ in range(100):
+        wait_result(page)
+        report = shown_report(page)
+        if report["scenario"]["synapse"]["path_distance"] == 550:
+            break
+        page.wait_for_timeout(100)
     assert report["scenario"]["synapse"]["path_distance"] == 550
     assert report["attenuation"]["steady_state"]["site_to_soma"] < before
 
